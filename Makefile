@@ -1,0 +1,168 @@
+# SPDX-License-Identifier: GPL-3.0-or-later
+# Vernier: LV2 plugins and the `vernier` host. GNU make.
+#
+#   make            build/vernier.lv2/ (the bundle) and build/vernier (the host)
+#   make check      install missing Debian packages, build, run every test
+#   make demo       install missing Debian packages, build, run the demo
+#   make bench      speed table (ns/sample, ratios against memcpy and a raw copy)
+#   make install    PREFIX, DESTDIR, LV2DIR (default $(PREFIX)/lib/lv2)
+
+PREFIX   ?= /usr/local
+BINDIR   ?= $(PREFIX)/bin
+MANDIR   ?= $(PREFIX)/share/man
+LV2DIR   ?= $(PREFIX)/lib/lv2
+DESTDIR  ?=
+
+.DEFAULT_GOAL := all
+VERSION  := 0.1.0
+BUILD    := build
+BUNDLE   := $(BUILD)/vernier.lv2
+PYTHON   := /usr/bin/python3
+
+CC       ?= cc
+PKG_CONFIG ?= pkg-config
+CFLAGS   ?= -O2 -g
+# Warnings are errors in CI (CI=true) and whenever WERROR=1.
+WARN     := -Wall -Wextra -Wshadow -Wstrict-prototypes \
+            $(if $(or $(CI),$(WERROR)),-Werror)
+STD      := -std=gnu11
+SAN      := -fsanitize=address,undefined -fno-omit-frame-pointer \
+            -fno-sanitize-recover=undefined
+
+# Recursive (=) so pkg-config runs after `deps` has installed what it needs.
+LV2_CFLAGS    = $(shell $(PKG_CONFIG) --cflags lv2)
+HOST_CFLAGS   = $(shell $(PKG_CONFIG) --cflags lilv-0 sndfile fftw3)
+HOST_LIBS     = $(shell $(PKG_CONFIG) --libs lilv-0 sndfile fftw3) -lm
+CMOCKA_CFLAGS = $(shell $(PKG_CONFIG) --cflags cmocka)
+CMOCKA_LIBS   = $(shell $(PKG_CONFIG) --libs cmocka)
+
+DSP_SRC     := $(wildcard plugins/dsp/*.c)
+PLUGIN_SRC  := plugins/bundle.c $(wildcard plugins/*/[a-z]*.c)
+PLUGIN_SRC  := $(filter-out $(DSP_SRC),$(PLUGIN_SRC)) $(DSP_SRC)
+HOST_SRC    := $(wildcard host/*.c)
+TTL         := $(filter-out ttl/manifest.ttl.in,$(wildcard ttl/*.ttl))
+DEBIAN_PACKAGES := pkg-config lv2-dev liblilv-dev lilv-utils sordi \
+                   libsndfile1-dev libfftw3-dev libcmocka-dev python3-scipy
+
+# A build variant: $(1) name, $(2) folder of the host, $(3) folder of the
+# bundle, $(4) extra flags. LV2_PATH entries are folders of bundles, and lilv
+# takes every entry of such a folder for a bundle, so tests point it at a
+# folder that holds bundles only: build/lv2 (a link to build/vernier.lv2) or
+# build/asan/lv2.
+define variant
+$(1)_DIR    := $(2)
+$(1)_CFLAGS  = $(CFLAGS) $(STD) $(WARN) $(4)
+$(1)_LDFLAGS = $(LDFLAGS) $(4)
+
+$(3)/vernier.so: $(PLUGIN_SRC) $(wildcard plugins/*.h plugins/dsp/*.h) | $(3)
+	$$(CC) $$($(1)_CFLAGS) $$(LV2_CFLAGS) -fPIC -shared -fvisibility=hidden \
+	  -Wl,--no-undefined -o $$@ $(PLUGIN_SRC) $$($(1)_LDFLAGS) -lm
+
+$(3)/manifest.ttl: ttl/manifest.ttl.in | $(3)
+	sed 's/@BINARY@/vernier.so/g' $$< > $$@
+
+$(3)/%.ttl: ttl/%.ttl | $(3)
+	cp $$< $$@
+
+$(2)/vernier: $(HOST_SRC) $(wildcard host/*.h plugins/dsp/*.h) $(DSP_SRC)
+	@mkdir -p $$(@D)
+	$$(CC) $$($(1)_CFLAGS) $$(HOST_CFLAGS) -DVERNIER_VERSION='"$(VERSION)"' \
+	  -o $$@ $(HOST_SRC) $(DSP_SRC) $$($(1)_LDFLAGS) $$(HOST_LIBS)
+
+$(3):
+	mkdir -p $$@
+
+$(1)_BUNDLE := $(3)/vernier.so $(3)/manifest.ttl \
+               $(patsubst ttl/%,$(3)/%,$(TTL))
+endef
+
+$(eval $(call variant,PLAIN,$(BUILD),$(BUNDLE),))
+$(eval $(call variant,ASAN,$(BUILD)/asan,$(BUILD)/asan/lv2/vernier.lv2,$(SAN)))
+
+.PHONY: all check check-run demo demo-run bench bench-run install uninstall \
+        clean deps format
+
+all: $(PLAIN_BUNDLE) $(BUILD)/vernier $(BUILD)/lv2/vernier.lv2
+
+$(BUILD)/lv2/vernier.lv2: | $(BUNDLE)
+	mkdir -p $(@D) && ln -sfn ../vernier.lv2 $@
+
+# ---------------------------------------------------------------- tests ----
+UNIT_TESTS := $(patsubst tests/unit/%.c,$(BUILD)/asan/tests/%,$(wildcard tests/unit/test_*.c))
+TEST_BUNDLES := $(patsubst tests/bundles/%,$(BUILD)/test-bundles/%,$(wildcard tests/bundles/*.lv2))
+
+$(BUILD)/asan/tests/%: tests/unit/%.c $(PLUGIN_SRC) $(wildcard tests/unit/*.h plugins/*.h plugins/dsp/*.h)
+	@mkdir -p $(@D)
+	$(CC) $(ASAN_CFLAGS) $(LV2_CFLAGS) $(CMOCKA_CFLAGS) -Iplugins -o $@ $< \
+	  $(PLUGIN_SRC) $(ASAN_LDFLAGS) $(CMOCKA_LIBS) -lm
+
+# Test bundles: each tests/bundles/<case>.lv2 folder is copied; a <case>.c in
+# it is built into the .so its manifest names (<case>.so).
+$(BUILD)/test-bundles/%.lv2: tests/bundles/%.lv2 $(wildcard tests/bundles/*/*)
+	@rm -rf $@ && mkdir -p $@
+	cp $</*.ttl $@/ 2>/dev/null || true
+	if [ -f $</$*.c ]; then $(CC) $(PLAIN_CFLAGS) $(LV2_CFLAGS) -fPIC -shared \
+	  -o $@/$*.so $</$*.c -lm; fi
+
+check: deps
+	+$(MAKE) check-run
+
+check-run: all $(ASAN_BUNDLE) $(BUILD)/asan/vernier $(UNIT_TESTS) $(TEST_BUNDLES)
+	BUILD=$(BUILD) PYTHON=$(PYTHON) sh tests/run.sh $(UNIT_TESTS)
+
+# ----------------------------------------------------------------- demo ----
+demo: deps
+	+$(MAKE) demo-run
+
+demo-run: all
+	LV2_PATH=$(abspath $(BUILD)/lv2) sh tests/demo.sh $(BUILD)
+
+# ---------------------------------------------------------------- bench ----
+$(BUILD)/bench/bench_dsp: tests/bench/bench_dsp.c $(PLUGIN_SRC)
+	@mkdir -p $(@D)
+	$(CC) $(PLAIN_CFLAGS) -O2 $(LV2_CFLAGS) -Iplugins -o $@ $< $(PLUGIN_SRC) -lm
+
+$(BUILD)/bench/raw_copy: tests/bench/raw_copy.c
+	@mkdir -p $(@D)
+	$(CC) $(PLAIN_CFLAGS) $(HOST_CFLAGS) -o $@ $< $(HOST_LIBS)
+
+bench: deps
+	+$(MAKE) bench-run
+
+bench-run: all $(BUILD)/bench/bench_dsp $(BUILD)/bench/raw_copy
+	BUILD=$(BUILD) sh tests/bench/bench.sh
+
+# -------------------------------------------------------------- install ----
+install: all
+	install -d $(DESTDIR)$(BINDIR) $(DESTDIR)$(MANDIR)/man1 \
+	  $(DESTDIR)$(LV2DIR)/vernier.lv2
+	install -m 755 $(BUILD)/vernier $(DESTDIR)$(BINDIR)/vernier
+	install -m 644 host/vernier.1 $(DESTDIR)$(MANDIR)/man1/vernier.1
+	install -m 755 $(BUNDLE)/vernier.so $(DESTDIR)$(LV2DIR)/vernier.lv2/
+	install -m 644 $(BUNDLE)/*.ttl $(DESTDIR)$(LV2DIR)/vernier.lv2/
+
+uninstall:
+	rm -f $(DESTDIR)$(BINDIR)/vernier $(DESTDIR)$(MANDIR)/man1/vernier.1
+	rm -rf $(DESTDIR)$(LV2DIR)/vernier.lv2
+
+clean:
+	rm -rf $(BUILD)
+
+format:
+	clang-format -i $(wildcard plugins/*.[ch] plugins/*/*.[ch] host/*.[ch] \
+	  tests/*/*.[ch])
+
+# Install the Debian packages the build and the tests need, when missing.
+deps:
+	@if ! command -v dpkg-query >/dev/null 2>&1; then \
+	  echo "deps: not a Debian system; install by hand: $(DEBIAN_PACKAGES)"; \
+	  exit 0; fi; \
+	missing=; for p in $(DEBIAN_PACKAGES); do \
+	  dpkg-query -W -f='$${Status}\n' $$p 2>/dev/null | \
+	    grep -q 'install ok installed' || missing="$$missing $$p"; done; \
+	if [ -n "$$missing" ]; then \
+	  sudo=; [ "$$(id -u)" -eq 0 ] || sudo=sudo; \
+	  echo "deps: installing$$missing"; \
+	  $$sudo apt-get update -qq && \
+	  DEBIAN_FRONTEND=noninteractive $$sudo apt-get install -y -qq $$missing; \
+	fi

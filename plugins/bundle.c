@@ -1,0 +1,18 @@
+// SPDX-License-Identifier: GPL-3.0-or-later
+// The bundle's single entry point. Keep the order: it is the discovery order.
+#include "plugins.h"
+
+#include <stddef.h>
+
+static const LV2_Descriptor *const descriptors[] = {
+    &gain_mono_descriptor,
+    &gain_stereo_descriptor,
+    &polarity_mono_descriptor,
+    &polarity_stereo_descriptor,
+};
+
+// Discovery thread.
+LV2_SYMBOL_EXPORT const LV2_Descriptor *lv2_descriptor(uint32_t index) {
+  return index < sizeof descriptors / sizeof descriptors[0] ? descriptors[index]
+                                                            : NULL;
+}
