@@ -36,10 +36,13 @@ static inline bool smoother_settled(const smoother_t *s) {
 static inline float smoother_next(smoother_t *s) {
   if (s->value != s->target) {
     const float d = s->value - s->target;
-    if (d < SMOOTHER_SNAP && d > -SMOOTHER_SNAP) {
+    const float next = s->target + d * s->pole;
+    // Land when close, or when float rounding stops the approach (with a long
+    // time constant at a high rate the step falls below one ulp).
+    if ((d < SMOOTHER_SNAP && d > -SMOOTHER_SNAP) || next == s->value) {
       s->value = s->target;
     } else {
-      s->value = s->target + d * s->pole;
+      s->value = next;
     }
   }
   return s->value;

@@ -1,0 +1,52 @@
+#!/bin/sh
+# SPDX-License-Identifier: GPL-3.0-or-later
+# Runs every test: the cmocka unit tests given as arguments, then each shell
+# suite in tests/host and tests/outside. Ends with one line of totals and
+# exits non-zero when anything failed.
+set -u
+BUILD=${BUILD:-build}
+export BUILD
+VERNIER_TEST_RESULTS=$(mktemp)
+export VERNIER_TEST_RESULTS
+trap 'rm -f "$VERNIER_TEST_RESULTS"' EXIT
+status=0
+
+for t in "$@"; do
+  echo "== unit: $(basename "$t")"
+  log=$(mktemp)
+  ASAN_OPTIONS=detect_leaks=1 "$t" >"$log" 2>&1
+  rc=$?
+  cat "$log"
+  passed=$(sed -n 's/^\[  PASSED  \] \([0-9]*\) test.*/\1/p' "$log")
+  failed=$(sed -n 's/^\[  FAILED  \] \([0-9]*\) test.*/\1/p' "$log")
+  i=0
+  while [ "$i" -lt "${passed:-0}" ]; do
+    echo "pass unit" >>"$VERNIER_TEST_RESULTS"
+    i=$((i + 1))
+  done
+  i=0
+  while [ "$i" -lt "${failed:-0}" ]; do
+    echo "fail unit" >>"$VERNIER_TEST_RESULTS"
+    i=$((i + 1))
+  done
+  if [ "$rc" -ne 0 ] && [ -z "$failed" ]; then
+    echo "fail unit/$(basename "$t") exit $rc" >>"$VERNIER_TEST_RESULTS"
+  fi
+  rm -f "$log"
+done
+
+for s in tests/host/*.sh tests/outside/*.sh; do
+  [ -f "$s" ] || continue
+  echo "== $(basename "$(dirname "$s")"): $(basename "$s" .sh)"
+  sh "$s" || echo "fail $s: the suite itself exited non-zero" >>"$VERNIER_TEST_RESULTS"
+done
+
+p=$(grep -c '^pass' "$VERNIER_TEST_RESULTS")
+f=$(grep -c '^fail' "$VERNIER_TEST_RESULTS")
+k=$(grep -c '^skip' "$VERNIER_TEST_RESULTS")
+if [ "$f" -gt 0 ]; then
+  echo "failed checks:"
+  grep '^fail' "$VERNIER_TEST_RESULTS" | sed 's/^fail /  /'
+fi
+echo "total: $p passed, $f failed, $k skipped"
+[ "$f" -eq 0 ] && [ "$p" -gt 0 ] && [ "$status" -eq 0 ]
