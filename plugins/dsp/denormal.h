@@ -40,7 +40,9 @@ static inline denormal_guard_t denormal_guard_begin(void) {
   denormal_guard_t g = {0};
   return g;
 }
-static inline void denormal_guard_end(denormal_guard_t g) { (void)g; }
+static inline void denormal_guard_end(denormal_guard_t g) {
+  (void)g;
+}
 #endif
 
 // For state variables in recursive filters on machines without FTZ: adding and

@@ -16,6 +16,8 @@ static inline float param_clamp(float v, float lo, float hi, float fallback) {
 
 // A toggled port is on when its value is above one half (LV2 lv2:toggled
 // ports carry 0 or 1; hosts may send anything).
-static inline int param_toggle(float v) { return v > 0.5f; }
+static inline int param_toggle(float v) {
+  return v > 0.5f;
+}
 
 #endif

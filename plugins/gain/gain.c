@@ -10,11 +10,7 @@
 
 // Mirrors lv2:index in ttl/gain.ttl; audio ports follow the controls,
 // inputs first (see PORT_AUDIO_IN / PORT_AUDIO_OUT).
-typedef enum {
-  GAIN_GAIN = 0,
-  GAIN_TRIM = 1,
-  GAIN_CONTROL_LAST
-} GainControl;
+typedef enum { GAIN_GAIN = 0, GAIN_TRIM = 1, GAIN_CONTROL_LAST } GainControl;
 
 #define GAIN_MAX_CHANNELS 2
 
@@ -39,20 +35,6 @@ static LV2_Handle instantiate(uint32_t n_channels, double rate_hz) {
   self->n_channels = n_channels;
   bipolar_gain_setup(&self->dsp, rate_hz);
   return self;
-}
-
-static LV2_Handle instantiate_mono(const LV2_Descriptor *d, double rate_hz,
-                                   const char *path,
-                                   const LV2_Feature *const *features) {
-  (void)d, (void)path, (void)features;
-  return instantiate(1, rate_hz);
-}
-
-static LV2_Handle instantiate_stereo(const LV2_Descriptor *d, double rate_hz,
-                                     const char *path,
-                                     const LV2_Feature *const *features) {
-  (void)d, (void)path, (void)features;
-  return instantiate(2, rate_hz);
 }
 
 // Audio thread (may also be called between runs from another thread).
@@ -93,18 +75,8 @@ static void run(LV2_Handle h, uint32_t n_frames) {
 }
 
 // Instantiation thread.
-static void cleanup(LV2_Handle h) { free(h); }
-
-// Discovery thread.
-static const void *extension_data(const char *uri) {
-  (void)uri;
-  return NULL;
+static void cleanup(LV2_Handle h) {
+  free(h);
 }
 
-const LV2_Descriptor gain_mono_descriptor = {
-    VERNIER_URI_PREFIX "gain-mono", instantiate_mono, connect_port, activate,
-    run, NULL, cleanup, extension_data};
-
-const LV2_Descriptor gain_stereo_descriptor = {
-    VERNIER_URI_PREFIX "gain-stereo", instantiate_stereo, connect_port,
-    activate, run, NULL, cleanup, extension_data};
+VERNIER_VARIANTS(gain);

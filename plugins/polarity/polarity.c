@@ -35,20 +35,6 @@ static LV2_Handle instantiate(uint32_t n_channels, double rate_hz) {
   return self;
 }
 
-static LV2_Handle instantiate_mono(const LV2_Descriptor *d, double rate_hz,
-                                   const char *path,
-                                   const LV2_Feature *const *features) {
-  (void)d, (void)path, (void)features;
-  return instantiate(1, rate_hz);
-}
-
-static LV2_Handle instantiate_stereo(const LV2_Descriptor *d, double rate_hz,
-                                     const char *path,
-                                     const LV2_Feature *const *features) {
-  (void)d, (void)path, (void)features;
-  return instantiate(2, rate_hz);
-}
-
 // Audio thread (may also be called between runs from another thread).
 static void connect_port(LV2_Handle h, uint32_t port, void *data) {
   Polarity *self = h;
@@ -85,18 +71,8 @@ static void run(LV2_Handle h, uint32_t n_frames) {
 }
 
 // Instantiation thread.
-static void cleanup(LV2_Handle h) { free(h); }
-
-// Discovery thread.
-static const void *extension_data(const char *uri) {
-  (void)uri;
-  return NULL;
+static void cleanup(LV2_Handle h) {
+  free(h);
 }
 
-const LV2_Descriptor polarity_mono_descriptor = {
-    VERNIER_URI_PREFIX "polarity-mono", instantiate_mono, connect_port,
-    activate, run, NULL, cleanup, extension_data};
-
-const LV2_Descriptor polarity_stereo_descriptor = {
-    VERNIER_URI_PREFIX "polarity-stereo", instantiate_stereo, connect_port,
-    activate, run, NULL, cleanup, extension_data};
+VERNIER_VARIANTS(polarity);

@@ -238,9 +238,9 @@ static void stereo_matches_mono(void **state) {
   enum { N = 4000 };
   float x[MAX_CH][N], ys[MAX_CH][N], ym[MAX_CH][N];
   fill_noise(&x[0][0], MAX_CH * N, 14);
-  const char *pairs[2][2] = {{"urn:vernier:gain-mono", "urn:vernier:gain-stereo"},
-                             {"urn:vernier:polarity-mono",
-                              "urn:vernier:polarity-stereo"}};
+  const char *pairs[2][2] = {
+      {"urn:vernier:gain-mono", "urn:vernier:gain-stereo"},
+      {"urn:vernier:polarity-mono", "urn:vernier:polarity-stereo"}};
   for (int k = 0; k < 2; ++k) {
     const Layout *lm = NULL, *ls = NULL;
     for (size_t li = 0; li < N_LAYOUTS; ++li) {
