@@ -16,13 +16,19 @@ typedef struct {
 #if defined(__SSE__) || defined(__x86_64__)
 #include <xmmintrin.h>
 #define DENORMAL_FTZ_DAZ 0x8040u // MXCSR bits: flush-to-zero (15), DAZ (6)
+// Writing MXCSR stalls the pipeline; skip it when the host already runs with
+// both bits set, as many do.
 static inline denormal_guard_t denormal_guard_begin(void) {
   denormal_guard_t g = {_mm_getcsr()};
-  _mm_setcsr((unsigned)g.saved | DENORMAL_FTZ_DAZ);
+  if ((g.saved & DENORMAL_FTZ_DAZ) != DENORMAL_FTZ_DAZ) {
+    _mm_setcsr((unsigned)g.saved | DENORMAL_FTZ_DAZ);
+  }
   return g;
 }
 static inline void denormal_guard_end(denormal_guard_t g) {
-  _mm_setcsr((unsigned)g.saved);
+  if ((g.saved & DENORMAL_FTZ_DAZ) != DENORMAL_FTZ_DAZ) {
+    _mm_setcsr((unsigned)g.saved);
+  }
 }
 #elif defined(__aarch64__)
 static inline denormal_guard_t denormal_guard_begin(void) {
