@@ -37,6 +37,10 @@ SAN      := -fsanitize=address,undefined -fno-omit-frame-pointer \
 LV2_CFLAGS    = $(shell $(PKG_CONFIG) --cflags lv2)
 HOST_CFLAGS   = $(shell $(PKG_CONFIG) --cflags lilv-0 sndfile fftw3)
 HOST_LIBS     = $(shell $(PKG_CONFIG) --libs lilv-0 sndfile fftw3) -lm
+# The plugins' FFT convolution (the Phase Rotator's Hilbert FIR) uses FFTW's
+# single-precision library.
+PLUGIN_CFLAGS = $(shell $(PKG_CONFIG) --cflags lv2 fftw3f)
+PLUGIN_LIBS   = $(shell $(PKG_CONFIG) --libs fftw3f) -lm
 CMOCKA_CFLAGS = $(shell $(PKG_CONFIG) --cflags cmocka)
 CMOCKA_LIBS   = $(shell $(PKG_CONFIG) --libs cmocka)
 
@@ -59,8 +63,8 @@ $(1)_CFLAGS  = $(CFLAGS) $(STD) $(WARN) $(4)
 $(1)_LDFLAGS = $(LDFLAGS) $(4)
 
 $(3)/vernier.so: $(PLUGIN_SRC) $(wildcard plugins/*.h plugins/dsp/*.h) | $(3)
-	$$(CC) $$($(1)_CFLAGS) $(DSP_OPT) $$(LV2_CFLAGS) -fPIC -shared -fvisibility=hidden \
-	  -Wl,--no-undefined -o $$@ $(PLUGIN_SRC) $$($(1)_LDFLAGS) -lm
+	$$(CC) $$($(1)_CFLAGS) $(DSP_OPT) $$(PLUGIN_CFLAGS) -fPIC -shared -fvisibility=hidden \
+	  -Wl,--no-undefined -o $$@ $(PLUGIN_SRC) $$($(1)_LDFLAGS) $$(PLUGIN_LIBS)
 
 $(3)/manifest.ttl: ttl/manifest.ttl.in | $(3)
 	sed 's/@BINARY@/vernier.so/g' $$< > $$@
@@ -97,8 +101,8 @@ TEST_BUNDLES := $(patsubst tests/bundles/%,$(BUILD)/test-bundles/%,$(wildcard te
 
 $(BUILD)/asan/tests/%: tests/unit/%.c $(PLUGIN_SRC) $(wildcard tests/unit/*.h plugins/*.h plugins/dsp/*.h)
 	@mkdir -p $(@D)
-	$(CC) $(ASAN_CFLAGS) $(LV2_CFLAGS) $(CMOCKA_CFLAGS) -Iplugins -o $@ $< \
-	  $(PLUGIN_SRC) $(ASAN_LDFLAGS) $(CMOCKA_LIBS) -lm
+	$(CC) $(ASAN_CFLAGS) $(PLUGIN_CFLAGS) $(CMOCKA_CFLAGS) -Iplugins -o $@ $< \
+	  $(PLUGIN_SRC) $(ASAN_LDFLAGS) $(CMOCKA_LIBS) $(PLUGIN_LIBS)
 
 # Test bundles: each tests/bundles/<case>.lv2 folder is copied; a <case>.c in
 # it is built into the .so its manifest names (<case>.so).
@@ -125,7 +129,8 @@ demo-run: all
 $(BUILD)/bench/bench_dsp: tests/bench/bench_dsp.c $(wildcard tests/bench/*.h) \
   $(PLUGIN_SRC) $(wildcard plugins/*.h plugins/dsp/*.h)
 	@mkdir -p $(@D)
-	$(CC) $(PLAIN_CFLAGS) -O2 $(DSP_OPT) $(LV2_CFLAGS) -Iplugins -o $@ $< $(PLUGIN_SRC) -lm
+	$(CC) $(PLAIN_CFLAGS) -O2 $(DSP_OPT) $(PLUGIN_CFLAGS) -Iplugins -o $@ $< \
+	  $(PLUGIN_SRC) $(PLUGIN_LIBS)
 
 $(BUILD)/bench/raw_copy: tests/bench/raw_copy.c
 	@mkdir -p $(@D)
