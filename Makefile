@@ -35,8 +35,8 @@ SAN      := -fsanitize=address,undefined -fno-omit-frame-pointer \
 
 # Recursive (=) so pkg-config runs after `deps` has installed what it needs.
 LV2_CFLAGS    = $(shell $(PKG_CONFIG) --cflags lv2)
-HOST_CFLAGS   = $(shell $(PKG_CONFIG) --cflags lilv-0 sndfile fftw3)
-HOST_LIBS     = $(shell $(PKG_CONFIG) --libs lilv-0 sndfile fftw3) -lm
+HOST_CFLAGS   = $(shell $(PKG_CONFIG) --cflags lilv-0 sndfile fftw3 fftw3f)
+HOST_LIBS     = $(shell $(PKG_CONFIG) --libs lilv-0 sndfile fftw3 fftw3f) -lm
 # The plugins' FFT convolution (the Phase Rotator's Hilbert FIR) uses FFTW's
 # single-precision library.
 PLUGIN_CFLAGS = $(shell $(PKG_CONFIG) --cflags lv2 fftw3f)

@@ -1,0 +1,199 @@
+// SPDX-License-Identifier: GPL-3.0-or-later
+// `vernier process IN OUT STEP...`: checks everything it can before it
+// touches OUT, then streams IN through the chain into a temporary file.
+#include <math.h>
+#include <signal.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "format.h"
+#include "interrupt.h"
+#include "process.h"
+#include "vernier.h"
+
+static bool show_progress(const VnProcess *p) {
+  return !p->opt.quiet && isatty(STDERR_FILENO);
+}
+
+static int interrupted(void) {
+  const int sig = vn_interrupt_pending();
+  return sig ? VN_EXIT_SIGNAL_BASE + sig : VN_EXIT_OK;
+}
+
+// Fills up to block_frames of p->samples: input while it lasts, then the
+// zeros that push the last latency + tail frames out of the chain.
+static long next_block(VnProcess *p, bool *input_done, uint64_t *zeros_left) {
+  const uint32_t channels = (uint32_t)p->input.info.channels;
+  const size_t block = p->opt.block_frames;
+  size_t n = 0;
+  if (!*input_done) {
+    const long got = vn_input_read(&p->input, p->samples, block);
+    if (got < 0) {
+      return -1;
+    }
+    *input_done = got == 0;
+    n = (size_t)got;
+  }
+  const uint64_t zeros = *zeros_left;
+  if (*input_done && n < block && zeros > 0) {
+    const size_t pad = zeros < block - n ? (size_t)zeros : block - n;
+    memset(p->samples + n * channels, 0, pad * channels * sizeof(float));
+    *zeros_left -= pad;
+    n += pad;
+  }
+  return (long)n;
+}
+
+static int stream(VnProcess *p) {
+  VnChain *c = &p->chain;
+  const uint32_t channels = c->n_channels;
+  const unsigned errors_before = vn_chain_errors(c);
+  // Contract: feed the input, then L + tail zeros; drop the first L frames.
+  uint64_t zeros_left = c->latency_frames + p->tail_frames;
+  uint64_t drop_left = c->latency_frames;
+  const uint64_t total = (uint64_t)p->input.info.frames + zeros_left;
+  uint64_t fed = 0;
+  int shown = -1;
+  bool input_done = false;
+  for (;;) {
+    int rc = interrupted();
+    if (rc != VN_EXIT_OK) {
+      return rc;
+    }
+    const long got = next_block(p, &input_done, &zeros_left);
+    if (got < 0) {
+      return VN_EXIT_PROCESSING;
+    }
+    if (got == 0) {
+      break;
+    }
+    const uint32_t n = (uint32_t)got;
+    for (uint32_t ch = 0; ch < channels; ++ch) {
+      float *in = vn_chain_input(c, ch);
+      for (uint32_t i = 0; i < n; ++i) {
+        in[i] = p->samples[(size_t)i * channels + ch];
+      }
+    }
+    vn_chain_run(c, n);
+    // The first error is enough: the output is not to be trusted, and a
+    // plugin that fails once tends to say so on every block after.
+    if (vn_chain_errors(c) > errors_before) {
+      vn_error("a plugin reported an error while processing (see above); %s "
+               "not written",
+               p->opt.out_path);
+      return VN_EXIT_PROCESSING;
+    }
+    const uint32_t skip = drop_left < n ? (uint32_t)drop_left : n;
+    drop_left -= skip;
+    for (uint32_t ch = 0; ch < channels; ++ch) {
+      const float *out = vn_chain_output(c, ch);
+      for (uint32_t i = skip; i < n; ++i) {
+        p->samples[(size_t)(i - skip) * channels + ch] = out[i];
+      }
+    }
+    if (n > skip) {
+      rc = vn_output_write(&p->output, p->samples, n - skip);
+      if (rc != VN_EXIT_OK) {
+        return rc;
+      }
+      p->frames_written += n - skip;
+    }
+    fed += n;
+    const int percent = total ? (int)(fed * 100 / total) : 100;
+    if (show_progress(p) && percent != shown) {
+      vn_progress_show(percent);
+      shown = percent;
+    }
+  }
+  vn_progress_clear();
+  return VN_EXIT_OK;
+}
+
+// The order decides which error a run with several problems reports:
+// usage and input first, plugins next, the output file last.
+static int run(VnProcess *p) {
+  const VnProcessOptions *opt = &p->opt;
+  int rc = vn_steps_parse(&p->steps, opt->step_words, opt->n_step_words);
+  if (rc == VN_EXIT_OK) {
+    rc = vn_input_open(&p->input, opt->in_path, opt->block_frames);
+  }
+  if (rc == VN_EXIT_OK) {
+    rc = vn_output_check(opt->out_path, opt->in_path, opt->overwrite);
+  }
+  if (rc == VN_EXIT_OK) {
+    rc = vn_format_choose(&p->input.info, opt->format, opt->out_path,
+                          &p->format);
+  }
+  const double rate_hz = p->input.info.samplerate;
+  const uint32_t channels = (uint32_t)p->input.info.channels;
+  if (rc == VN_EXIT_OK && (rc = interrupted()) == VN_EXIT_OK) {
+    rc = vn_world_open(&p->world);
+  }
+  if (rc == VN_EXIT_OK && (rc = interrupted()) == VN_EXIT_OK) {
+    rc = vn_steps_resolve(&p->steps, &p->world, rate_hz);
+  }
+  if (rc == VN_EXIT_OK) {
+    rc = vn_chain_build(&p->chain, &p->world, &p->steps, channels, rate_hz,
+                        opt->block_frames, opt->quiet, opt->in_path);
+  }
+  if (rc == VN_EXIT_OK) {
+    p->tail_frames = (uint64_t)llround(opt->tail_s * rate_hz);
+    p->samples = malloc((size_t)opt->block_frames * channels * sizeof(float));
+    if (!p->samples) {
+      vn_error("out of memory for --block %u at %u channels", opt->block_frames,
+               channels);
+      rc = VN_EXIT_PROCESSING;
+    }
+  }
+  if (rc == VN_EXIT_OK && (rc = interrupted()) == VN_EXIT_OK) {
+    rc = vn_output_open(&p->output, opt->out_path, &p->input, p->format,
+                        opt->block_frames, opt->overwrite);
+  }
+  if (rc == VN_EXIT_OK) {
+    rc = stream(p);
+  }
+  if (rc == VN_EXIT_OK) {
+    rc = vn_output_commit(&p->output, opt->overwrite);
+  }
+  if (rc == VN_EXIT_OK) {
+    vn_process_report(p);
+  }
+  return rc;
+}
+
+// The one cleanup path: whatever run() got to, this frees it and removes a
+// temporary file that was not put in place.
+static void cleanup(VnProcess *p) {
+  vn_progress_clear();
+  vn_output_discard(&p->output);
+  vn_chain_free(&p->chain);
+  vn_steps_free(&p->steps);
+  vn_world_close(&p->world);
+  vn_input_close(&p->input);
+  free(p->samples);
+  vn_process_options_free(&p->opt);
+}
+
+int vn_process_main(int argc, char **argv) {
+  vn_interrupt_install();
+  VnProcess *p = calloc(1, sizeof *p);
+  if (!p) {
+    vn_error("out of memory");
+    return VN_EXIT_PROCESSING;
+  }
+  int rc = vn_process_parse(&p->opt, argc, argv);
+  if (rc == VN_EXIT_OK) {
+    rc = run(p);
+    if (rc > VN_EXIT_SIGNAL_BASE) {
+      vn_error("interrupted by %s; %s not written",
+               rc == VN_EXIT_SIGNAL_BASE + SIGINT ? "SIGINT" : "SIGTERM",
+               p->opt.out_path);
+    }
+  } else if (rc < 0) {
+    rc = VN_EXIT_OK; // --help or --version
+  }
+  cleanup(p);
+  free(p);
+  return rc;
+}
