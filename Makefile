@@ -113,14 +113,14 @@ $(BUILD)/test-bundles/%.lv2: tests/bundles/%.lv2 $(wildcard tests/bundles/*/*)
 	  -o $@/$*.so $</$*.c -lm; fi
 
 check: deps
-	+$(MAKE) check-run
+	+$(MAKE) --no-print-directory check-run
 
 check-run: all $(ASAN_BUNDLE) $(BUILD)/asan/vernier $(UNIT_TESTS) $(TEST_BUNDLES)
 	BUILD=$(BUILD) PYTHON=$(PYTHON) sh tests/run.sh $(UNIT_TESTS)
 
 # ----------------------------------------------------------------- demo ----
 demo: deps
-	+$(MAKE) demo-run
+	+$(MAKE) --no-print-directory demo-run
 
 demo-run: all
 	LV2_PATH=$(abspath $(BUILD)/lv2) sh tests/demo.sh $(BUILD)
@@ -137,7 +137,7 @@ $(BUILD)/bench/raw_copy: tests/bench/raw_copy.c
 	$(CC) $(PLAIN_CFLAGS) $(HOST_CFLAGS) -o $@ $< $(HOST_LIBS)
 
 bench: deps
-	+$(MAKE) bench-run
+	+$(MAKE) --no-print-directory bench-run
 
 bench-run: all $(BUILD)/bench/bench_dsp $(BUILD)/bench/raw_copy
 	BUILD=$(BUILD) sh tests/bench/bench.sh

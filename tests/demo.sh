@@ -22,10 +22,13 @@ di=$($AUDIO level "$OUT/bass-di.wav")
 before=$($AUDIO level "$OUT/sum-before.wav")
 after=$($AUDIO level "$OUT/sum-after.wav")
 echo
-printf '  DI alone           %7s dB RMS\n' "$di"
-printf '  DI + amp, as is    %7s dB RMS\n' "$before"
-printf '  DI + amp, flipped  %7s dB RMS  (%s dB more)\n' "$after" \
-  "$($PY -c "print('%+.1f' % ($after - $before))")"
+$PY - "$di" "$before" "$after" <<'EOF2'
+import sys
+di, before, after = (float(v) for v in sys.argv[1:])
+print("  DI alone            %6.1f dB RMS" % di)
+print("  DI + amp, as is     %6.1f dB RMS" % before)
+print("  DI + amp, flipped   %6.1f dB RMS   (%+.1f dB)" % (after, after - before))
+EOF2
 echo
 echo "Listen: $OUT/sum-before.wav and $OUT/sum-after.wav (turn the monitors"
 echo "down first: the corrected sum is louder)."

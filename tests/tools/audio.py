@@ -10,9 +10,13 @@
   audio.py level A.wav                   RMS level in dB re full scale
 """
 import sys
+import warnings
 
 import numpy as np
 from scipy.io import wavfile
+
+# libsndfile adds chunks (PEAK, LIST) that scipy reads past with a warning.
+warnings.simplefilter("ignore", wavfile.WavFileWarning)
 
 
 def arg(name, default, cast=float):
