@@ -35,7 +35,8 @@ typedef struct {
 } VnOutput;
 
 // Exit 3 with the error printed unless path is audio with frames.
-int vn_input_open(VnInput *in, const char *path, size_t max_frames);
+// Reads come in chunks of max_frames, a whole number of block_frames.
+int vn_input_open(VnInput *in, const char *path, size_t block_frames);
 // Interleaved, at most max_frames; 0 at the end, -1 on a read error (the
 // error printed).
 long vn_input_read(VnInput *in, float *samples, size_t frames);

@@ -21,11 +21,11 @@ static int interrupted(void) {
   return sig ? VN_EXIT_SIGNAL_BASE + sig : VN_EXIT_OK;
 }
 
-// Fills up to block_frames of p->samples: input while it lasts, then the
+// Fills up to one chunk of p->samples: input while it lasts, then the
 // zeros that push the last latency + tail frames out of the chain.
-static long next_block(VnProcess *p, bool *input_done, uint64_t *zeros_left) {
+static long next_chunk(VnProcess *p, bool *input_done, uint64_t *zeros_left) {
   const uint32_t channels = (uint32_t)p->input.info.channels;
-  const size_t block = p->opt.block_frames;
+  const size_t block = p->input.max_frames;
   size_t n = 0;
   if (!*input_done) {
     const long got = vn_input_read(&p->input, p->samples, block);
@@ -45,9 +45,54 @@ static long next_block(VnProcess *p, bool *input_done, uint64_t *zeros_left) {
   return (long)n;
 }
 
+// libsndfile gives interleaved frames, plugins take one buffer a channel.
+// Mono and stereo, nearly every file, get loops the compiler can keep tight.
+static void deinterleave(const float *restrict src, VnChain *c, uint32_t n) {
+  const uint32_t channels = c->n_channels;
+  if (channels == 1) {
+    memcpy(vn_chain_input(c, 0), src, n * sizeof(float));
+  } else if (channels == 2) {
+    float *restrict l = vn_chain_input(c, 0), *restrict r =
+                                                  vn_chain_input(c, 1);
+    for (uint32_t i = 0; i < n; ++i) {
+      l[i] = src[2 * i];
+      r[i] = src[2 * i + 1];
+    }
+  } else {
+    for (uint32_t ch = 0; ch < channels; ++ch) {
+      float *restrict in = vn_chain_input(c, ch);
+      for (uint32_t i = 0; i < n; ++i) {
+        in[i] = src[(size_t)i * channels + ch];
+      }
+    }
+  }
+}
+
+// Frames skip .. n of the chain's output, interleaved into dst.
+static void interleave(const VnChain *c, uint32_t skip, uint32_t n,
+                       float *restrict dst) {
+  const uint32_t channels = c->n_channels;
+  if (channels == 1) {
+    memcpy(dst, vn_chain_output(c, 0) + skip, (n - skip) * sizeof(float));
+  } else if (channels == 2) {
+    const float *restrict l = vn_chain_output(c, 0) + skip;
+    const float *restrict r = vn_chain_output(c, 1) + skip;
+    for (uint32_t i = 0; i < n - skip; ++i) {
+      dst[2 * i] = l[i];
+      dst[2 * i + 1] = r[i];
+    }
+  } else {
+    for (uint32_t ch = 0; ch < channels; ++ch) {
+      const float *restrict out = vn_chain_output(c, ch);
+      for (uint32_t i = skip; i < n; ++i) {
+        dst[(size_t)(i - skip) * channels + ch] = out[i];
+      }
+    }
+  }
+}
+
 static int stream(VnProcess *p) {
   VnChain *c = &p->chain;
-  const uint32_t channels = c->n_channels;
   const unsigned errors_before = vn_chain_errors(c);
   // Contract: feed the input, then L + tail zeros; drop the first L frames.
   uint64_t zeros_left = c->latency_frames + p->tail_frames;
@@ -61,45 +106,44 @@ static int stream(VnProcess *p) {
     if (rc != VN_EXIT_OK) {
       return rc;
     }
-    const long got = next_block(p, &input_done, &zeros_left);
+    const long got = next_chunk(p, &input_done, &zeros_left);
     if (got < 0) {
       return VN_EXIT_PROCESSING;
     }
     if (got == 0) {
       break;
     }
-    const uint32_t n = (uint32_t)got;
-    for (uint32_t ch = 0; ch < channels; ++ch) {
-      float *in = vn_chain_input(c, ch);
-      for (uint32_t i = 0; i < n; ++i) {
-        in[i] = p->samples[(size_t)i * channels + ch];
+    // Run the chunk block by block. The output goes back into the same
+    // buffer: it is written at or before the frames already taken out.
+    const uint32_t channels = c->n_channels;
+    uint32_t kept = 0;
+    for (uint32_t at = 0; at < (uint32_t)got; at += p->opt.block_frames) {
+      const uint32_t left = (uint32_t)got - at;
+      const uint32_t n =
+          left < p->opt.block_frames ? left : p->opt.block_frames;
+      deinterleave(p->samples + (size_t)at * channels, c, n);
+      vn_chain_run(c, n);
+      // The first error is enough: the output is not to be trusted, and a
+      // plugin that fails once tends to say so on every block after.
+      if (vn_chain_errors(c) > errors_before) {
+        vn_error("a plugin reported an error while processing (see above); "
+                 "%s not written",
+                 p->opt.out_path);
+        return VN_EXIT_PROCESSING;
       }
+      const uint32_t skip = drop_left < n ? (uint32_t)drop_left : n;
+      drop_left -= skip;
+      interleave(c, skip, n, p->samples + (size_t)kept * channels);
+      kept += n - skip;
     }
-    vn_chain_run(c, n);
-    // The first error is enough: the output is not to be trusted, and a
-    // plugin that fails once tends to say so on every block after.
-    if (vn_chain_errors(c) > errors_before) {
-      vn_error("a plugin reported an error while processing (see above); %s "
-               "not written",
-               p->opt.out_path);
-      return VN_EXIT_PROCESSING;
-    }
-    const uint32_t skip = drop_left < n ? (uint32_t)drop_left : n;
-    drop_left -= skip;
-    for (uint32_t ch = 0; ch < channels; ++ch) {
-      const float *out = vn_chain_output(c, ch);
-      for (uint32_t i = skip; i < n; ++i) {
-        p->samples[(size_t)(i - skip) * channels + ch] = out[i];
-      }
-    }
-    if (n > skip) {
-      rc = vn_output_write(&p->output, p->samples, n - skip);
+    if (kept > 0) {
+      rc = vn_output_write(&p->output, p->samples, kept);
       if (rc != VN_EXIT_OK) {
         return rc;
       }
-      p->frames_written += n - skip;
+      p->frames_written += kept;
     }
-    fed += n;
+    fed += (uint64_t)got;
     const int percent = total ? (int)(fed * 100 / total) : 100;
     if (show_progress(p) && percent != shown) {
       vn_progress_show(percent);
@@ -139,7 +183,7 @@ static int run(VnProcess *p) {
   }
   if (rc == VN_EXIT_OK) {
     p->tail_frames = (uint64_t)llround(opt->tail_s * rate_hz);
-    p->samples = malloc((size_t)opt->block_frames * channels * sizeof(float));
+    p->samples = malloc(p->input.max_frames * channels * sizeof(float));
     if (!p->samples) {
       vn_error("out of memory for --block %u at %u channels", opt->block_frames,
                channels);
@@ -148,7 +192,7 @@ static int run(VnProcess *p) {
   }
   if (rc == VN_EXIT_OK && (rc = interrupted()) == VN_EXIT_OK) {
     rc = vn_output_open(&p->output, opt->out_path, &p->input, p->format,
-                        opt->block_frames, opt->overwrite);
+                        p->input.max_frames, opt->overwrite);
   }
   if (rc == VN_EXIT_OK) {
     rc = stream(p);

@@ -39,7 +39,7 @@ typedef struct {
   VnInput input;
   VnOutput output;
   VnChain chain;
-  float *samples; // interleaved, block_frames * channels
+  float *samples; // interleaved, input.max_frames * channels
   int format;
   uint64_t tail_frames;
   uint64_t frames_written;

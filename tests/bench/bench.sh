@@ -33,11 +33,12 @@ PROBE=$B/probe-1s.wav
 PROBE_OUT=$B/probe-1s-out.wav
 PORTS=$B/ports.txt
 TIMES_RAW=$B/times-raw.txt
+TIMES_SYNC=$B/times-sync.txt
 TIMES_HOST=$B/times-vernier.txt
 HOST_ERR=$B/vernier-stderr.txt
 
 cleanup() {
-  rm -f "$OUT_RAW" "$OUT_HOST" "$PROBE" "$PROBE_OUT" "$PORTS" "$TIMES_RAW" \
+  rm -f "$OUT_RAW" "$OUT_HOST" "$PROBE" "$PROBE_OUT" "$PORTS" "$TIMES_RAW" "$TIMES_SYNC" \
     "$TIMES_HOST" "$HOST_ERR"
   [ "${VERNIER_BENCH_KEEP:-0}" = 1 ] || rm -f "$IN"
 }
@@ -177,11 +178,15 @@ fi
 # falls on both; one untimed raw copy first settles the page cache.
 "$RAW_COPY" "$IN" "$OUT_RAW" || exit 1
 : >"$TIMES_RAW"
+: >"$TIMES_SYNC"
 : >"$TIMES_HOST"
 i=1
 while [ "$i" -le "$RUNS" ]; do
   rm -f "$OUT_RAW"
   "$BENCH_DSP" --time "$RAW_COPY" "$IN" "$OUT_RAW" >>"$TIMES_RAW" || exit 1
+  rm -f "$OUT_RAW"
+  "$BENCH_DSP" --time "$RAW_COPY" --sync "$IN" "$OUT_RAW" >>"$TIMES_SYNC" ||
+    exit 1
   rm -f "$OUT_RAW"
   if [ "$host_ok" = 1 ]; then
     rm -f "$OUT_HOST"
@@ -208,16 +213,30 @@ printf '%-42s %8s %8s %11s %7s %7s  %s\n' "command" "median" "median" \
 awk -v w="$raw_wall" -v c="$raw_cpu" -v s="$seconds" 'BEGIN {
   printf "%-42s %8.3f %8.3f %10.0fx %6.2fx %6.2fx  %s\n",
     "raw_copy IN OUT (libsndfile, 512 frames)", w, c, s / w, 1, 1, "(baseline)" }'
+# the same copy flushed to disk before it exits, as vernier is
+paste -d ' ' "$TIMES_SYNC" "$TIMES_RAW" |
+  awk '{ print $1 / $3, $2 / $4 }' >"$TIMES_SYNC.ratio"
+awk -v w="$(median "$TIMES_SYNC" 1)" -v c="$(median "$TIMES_SYNC" 2)" \
+  -v rw="$(median "$TIMES_SYNC.ratio" 1)" \
+  -v rc="$(median "$TIMES_SYNC.ratio" 2)" -v s="$seconds" 'BEGIN {
+  printf "%-42s %8.3f %8.3f %10.0fx %6.2fx %6.2fx  %s\n",
+    "raw_copy --sync IN OUT (+ fsync)", w, c, s / w, rw, rc, "(baseline 2)" }'
+rm -f "$TIMES_SYNC.ratio"
 if [ "$host_ok" = 1 ]; then
   # vs raw: the median of the per-run ratios (each pair ran back to back)
-  paste -d ' ' "$TIMES_HOST" "$TIMES_RAW" |
-    awk '{ print $1 / $3, $2 / $4 }' >"$TIMES_HOST.ratio"
-  awk -v w="$(median "$TIMES_HOST" 1)" -v c="$(median "$TIMES_HOST" 2)" \
-    -v rw="$(median "$TIMES_HOST.ratio" 1)" \
-    -v rc="$(median "$TIMES_HOST.ratio" 2)" -v s="$seconds" 'BEGIN {
-    printf "%-42s %8.3f %8.3f %10.0fx %6.2fx %6.2fx  <= 1.25x: %s\n",
-      "vernier process -q IN OUT gain gain=0.7", w, c, s / w, rw, rc,
-      (rw <= 1.25 ? "met" : "MISSED") }'
+  for base in RAW SYNC; do
+    eval "times=\$TIMES_$base"
+    paste -d ' ' "$TIMES_HOST" "$times" |
+      awk '{ print $1 / $3, $2 / $4 }' >"$TIMES_HOST.ratio"
+    label="vernier process -q IN OUT gain gain=0.7"
+    [ "$base" = SYNC ] && label="  the same against baseline 2"
+    awk -v w="$(median "$TIMES_HOST" 1)" -v c="$(median "$TIMES_HOST" 2)" \
+      -v rw="$(median "$TIMES_HOST.ratio" 1)" \
+      -v rc="$(median "$TIMES_HOST.ratio" 2)" -v s="$seconds" \
+      -v label="$label" 'BEGIN {
+      printf "%-42s %8.3f %8.3f %10.0fx %6.2fx %6.2fx  <= 1.25x: %s\n",
+        label, w, c, s / w, rw, rc, (rw <= 1.25 ? "met" : "MISSED") }'
+  done
   rm -f "$TIMES_HOST.ratio"
 else
   printf '%-42s %s\n' "vernier process -q IN OUT gain gain=0.7" \
@@ -227,4 +246,7 @@ echo "wall s: elapsed time; cpu s: user + system time of the process; x realtime
 echo "  seconds of audio per second of wall time; vs raw: median over the runs of"
 echo "  vernier / raw_copy, each pair run back to back. $RUNS timed runs of each,"
 echo "  alternating. IN is in the page cache and OUT goes to it, so this measures"
-echo "  the CPU and memory, not the disk. Outputs are deleted after each run."
+echo "  the CPU and memory, not the disk, except where a run flushes to disk:"
+echo "  vernier fsyncs its output before renaming it into place (so a crash never"
+echo "  leaves a renamed but empty file), and baseline 2 does the same."
+echo "  Outputs are deleted after each run."

@@ -4,17 +4,36 @@
 // (the host's default block) and writes the input's format, channels and
 // sample rate. No plugins, no metadata copy, no temporary file.
 //
-//   raw_copy IN OUT      exit 0 on success, 1 on any error (message on stderr)
+//   raw_copy [--sync] IN OUT   exit 0 on success, 1 on any error
+//
+// --sync flushes OUT to the disk (fsync) before exiting, as `vernier` does
+// before it renames its temporary file into place: the baseline with the
+// same durability.
+#include <fcntl.h>
 #include <stdio.h>
 #include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
 
 #include <sndfile.h>
 
 #define BLOCK_FRAMES 512
 
+static int sync_file(const char *path) {
+  const int fd = open(path, O_WRONLY);
+  const int rc = fd >= 0 && fsync(fd) == 0 ? 0 : 1;
+  if (fd >= 0) {
+    close(fd);
+  }
+  return rc;
+}
+
 int main(int argc, char **argv) {
+  const int sync = argc == 4 && !strcmp(argv[1], "--sync");
+  argv += sync;
+  argc -= sync;
   if (argc != 3) {
-    fprintf(stderr, "usage: raw_copy IN OUT\n");
+    fprintf(stderr, "usage: raw_copy [--sync] IN OUT\n");
     return 1;
   }
   SF_INFO info = {0};
@@ -49,6 +68,10 @@ int main(int argc, char **argv) {
   sf_close(in);
   if (sf_close(out) != 0 && !status) {
     fprintf(stderr, "raw_copy: %s: cannot close\n", argv[2]);
+    status = 1;
+  }
+  if (!status && sync && sync_file(argv[2]) != 0) {
+    fprintf(stderr, "raw_copy: %s: cannot sync\n", argv[2]);
     status = 1;
   }
   return status;
