@@ -5,10 +5,10 @@
 #include <stddef.h>
 
 static const LV2_Descriptor *const descriptors[] = {
-    &gain_mono_descriptor,
-    &gain_stereo_descriptor,
-    &polarity_mono_descriptor,
-    &polarity_stereo_descriptor,
+    &gain_mono_descriptor,     &gain_stereo_descriptor,
+    &polarity_mono_descriptor, &polarity_stereo_descriptor,
+    &rotate_mono_descriptor,   &rotate_stereo_descriptor,
+    &allpass_mono_descriptor,  &allpass_stereo_descriptor,
 };
 
 // Discovery thread.
