@@ -50,9 +50,10 @@ int vn_steps_parse(VnSteps *s, char *const *words, size_t n_words) {
     return VN_EXIT_USAGE;
   }
   if (vn_word_is_setting(words[0])) {
-    vn_error("'%s' is a setting, but no plugin comes before it; a STEP "
-             "starts with a plugin name (gain, polarity) or a URI",
-             words[0]);
+    vn_error(
+        "'%s' is a setting, but no plugin comes before it; a STEP "
+        "starts with a plugin name (gain, polarity, rotate, allpass) or a URI",
+        words[0]);
     return VN_EXIT_USAGE;
   }
   for (size_t i = 0; i < n_words; ++i) {
