@@ -49,7 +49,7 @@ PLUGIN_SRC  := plugins/bundle.c $(wildcard plugins/*/[a-z]*.c)
 PLUGIN_SRC  := $(filter-out $(DSP_SRC),$(PLUGIN_SRC)) $(DSP_SRC)
 HOST_SRC    := $(wildcard host/*.c)
 TTL         := $(filter-out ttl/manifest.ttl.in,$(wildcard ttl/*.ttl))
-DEBIAN_PACKAGES := pkg-config lv2-dev liblilv-dev lilv-utils sordi \
+DEBIAN_PACKAGES := build-essential pkg-config lv2-dev liblilv-dev lilv-utils sordi \
                    libsndfile1-dev libfftw3-dev libcmocka-dev python3-scipy
 
 # A build variant: $(1) name, $(2) folder of the host, $(3) folder of the
