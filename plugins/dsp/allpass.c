@@ -1,88 +1,19 @@
 // SPDX-License-Identifier: GPL-3.0-or-later
+// The all-pass of allpass.h at work: the glide of f0 and q, the stages, the
+// crossfade between cascades and the kernels that run a settled one. What
+// the coefficients are for one (f0, q) is allpass_coef.h's business, so this
+// file is about time: what happens frame by frame.
 #include "allpass.h"
 
 #include <math.h>
 #include <string.h>
 
+#include "allpass_coef.h"
 #include "param.h"
 
 #define ALWAYS_INLINE inline __attribute__((always_inline))
 
-// ------------------------------------------------------- coefficients ----
-
-// While a parameter glides the coefficients change every sample, and libm's
-// exp2, sin and cos would cost more than the filter. Truncated Taylor series
-// do it, evaluated by Estrin's scheme (pairs, then pairs of pairs) rather
-// than Horner's rule, whose one long chain of dependent multiply-adds would
-// dominate the cost. Good to 1e-8 over the ranges used (test_allpass.c
-// checks them against libm), so the step to the exact libm values when the
-// glide lands is some 160 dB down.
-
-// c[0] + c[1] r + ... + c[7] r^7.
-static inline double estrin7(const double *c, double r) {
-  const double r2 = r * r, r4 = r2 * r2;
-  const double lo = (c[0] + c[1] * r) + (c[2] + c[3] * r) * r2;
-  const double hi = (c[4] + c[5] * r) + (c[6] + c[7] * r) * r2;
-  return lo + hi * r4;
-}
-
-// (ln 2)^i / i!: 2^r = e^(r ln 2) to r^7 (7e-9 for |r| <= 1/2). Then
-// (-1)^k / (2k+1)! and (-1)^k / (2k)!: sin to x^15 and cos to x^14, in x^2
-// (4e-12 and 1.5e-9 relative for 0 <= x <= 0.49 pi).
-// clang-format off
-static const double exp2_series[8] = {
-    1.0, 0.69314718055994529, 0.24022650695910069, 0.055504108664821576,
-    0.0096181291076284769, 0.0013333558146428441, 0.00015403530393381606,
-    1.5252733804059838e-05};
-static const double sin_series[8] = {
-    1.0, -0.16666666666666666, 0.0083333333333333332,
-    -0.00019841269841269841, 2.7557319223985893e-06, -2.505210838544172e-08,
-    1.6059043836821613e-10, -7.6471637318198164e-13};
-static const double cos_series[8] = {
-    1.0, -0.5, 0.041666666666666664, -0.0013888888888888889,
-    2.4801587301587302e-05, -2.7557319223985888e-07, 2.08767569878681e-09,
-    -1.1470745597729725e-11};
-// clang-format on
-
-// 2^u for |u| < 60: 2^n from the exponent bits times 2^r, |r| <= 1/2.
-static inline double fast_exp2(double u) {
-  const int n = (int)(u + 64.5) - 64; // nearest integer; u + 64.5 > 0
-  const uint64_t bits = (uint64_t)(n + 1023) << 52;
-  double scale;
-  memcpy(&scale, &bits, sizeof scale);
-  return estrin7(exp2_series, u - (double)n) * scale;
-}
-
-static inline void fast_sincos(double x, double *s, double *c) {
-  const double y = x * x;
-  *s = x * estrin7(sin_series, y);
-  *c = estrin7(cos_series, y);
-}
-
-// s = sin(pi f0/rate), c = cos(pi f0/rate), k = 1/q. Written in s and c
-// rather than g = tan: one division instead of two, no cancellation at low
-// f0, and alpha = k s c is the RBJ cookbook's sin(w0) / (2 q). Whatever the
-// rounding of s and c, these are the SVF for g = s/c exactly (D uses
-// s^2 + c^2 as computed), so the stage stays an all-pass. A glide computes
-// only the order that is running (each costs a division).
-static void coefs_from(allpass_coefs_t *co, double s, double c, double k,
-                       bool second, bool first) {
-  if (second) {
-    const double ss = s * s, cc = c * c, sc = s * c;
-    const double alpha = k * sc;
-    const double inv_d = 1.0 / (cc + ss + alpha);
-    co->k = k;
-    co->m = (cc - ss - alpha) * inv_d;
-    co->b1 = 2.0 * sc * inv_d;
-    co->b2 = 2.0 * ss * inv_d;
-  }
-  if (first) {
-    const double inv_sum = 1.0 / (c + s);
-    co->p = (c - s) * inv_sum; // (1 - g) / (1 + g)
-    co->one_minus_p = 2.0 * s * inv_sum;
-    co->one_plus_p = 2.0 * c * inv_sum;
-  }
-}
+// -------------------------------------------------------------- glide ----
 
 static bool gliding(const allpass_t *a) {
   return !smoother_settled(&a->log2_freq) || !smoother_settled(&a->log2_q);
@@ -98,13 +29,13 @@ static const allpass_coefs_t *glide(allpass_t *a) {
   }
   double s = a->exact_sin, c = a->exact_cos, k = a->exact_k;
   if (!smoother_settled(&a->log2_freq)) {
-    fast_sincos(M_PI * fast_exp2(u_freq), &s, &c);
+    allpass_fast_sincos(M_PI * allpass_fast_exp2(u_freq), &s, &c);
   }
   if (!smoother_settled(&a->log2_q)) {
-    k = fast_exp2(-(double)u_q);
+    k = allpass_fast_exp2(-(double)u_q);
   }
-  coefs_from(&a->coefs, s, c, k, a->live[ALLPASS_ORDER_SECOND] > 0,
-             a->live[ALLPASS_ORDER_FIRST] > 0);
+  allpass_coefs_from(&a->coefs, s, c, k, a->live[ALLPASS_ORDER_SECOND] > 0,
+                     a->live[ALLPASS_ORDER_FIRST] > 0);
   return &a->coefs;
 }
 
@@ -382,11 +313,8 @@ static void retarget(allpass_t *a, float frequency_hz, float q) {
   f_hz = f_hz > a->max_frequency_hz ? a->max_frequency_hz : f_hz;
   const double qq =
       param_clamp(q, ALLPASS_Q_MIN, ALLPASS_Q_MAX, ALLPASS_Q_DEFAULT);
-  const double half_w0 = M_PI * f_hz / a->rate_hz;
-  a->exact_sin = sin(half_w0);
-  a->exact_cos = cos(half_w0);
-  a->exact_k = 1.0 / qq;
-  coefs_from(&a->exact, a->exact_sin, a->exact_cos, a->exact_k, true, true);
+  allpass_coefs_exact(&a->exact, &a->exact_sin, &a->exact_cos, &a->exact_k,
+                      f_hz, a->rate_hz, qq);
   const float u_freq = (float)log2(f_hz / a->rate_hz);
   const float u_q = (float)log2(qq);
   if (a->primed) {
