@@ -259,6 +259,9 @@ int vn_output_open(VnOutput *out, const char *path, const VnInput *in,
   return VN_EXIT_OK;
 }
 
+// How much the output may run ahead of the disk (see vn_output_write).
+#define WRITEBACK_BYTES (8u << 20)
+
 static void quantize(VnOutput *out, const float *samples, size_t n) {
   const double full_scale = ldexp(1.0, out->pcm_bits - 1);
   const double top = full_scale - 1.0, bottom = -full_scale;
@@ -297,6 +300,14 @@ int vn_output_write(VnOutput *out, const float *samples, size_t frames) {
   if (written != (sf_count_t)frames) {
     vn_error("%s: write failed (%s)", out->path, sf_strerror(out->sf));
     return VN_EXIT_OUTPUT;
+  }
+  // Start the disk writes now, without waiting for them, so the fsync()
+  // before the rename finds little left to do. Advice only: a failure here
+  // changes nothing, fsync() reports real errors.
+  out->unflushed_bytes += n * sizeof(float);
+  if (out->unflushed_bytes >= WRITEBACK_BYTES) {
+    sync_file_range(out->fd, 0, 0, SYNC_FILE_RANGE_WRITE);
+    out->unflushed_bytes = 0;
   }
   return VN_EXIT_OK;
 }

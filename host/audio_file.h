@@ -32,6 +32,7 @@ typedef struct {
   uint64_t nonfinite_samples; // NaN written as 0 to a fixed-point file
   int32_t *ints;
   size_t max_frames;
+  size_t unflushed_bytes; // written since the last writeback was started
 } VnOutput;
 
 // Exit 3 with the error printed unless path is audio with frames.
