@@ -3,6 +3,7 @@
 
 #include <limits.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
 #include <unistd.h>
@@ -114,6 +115,38 @@ static void load_bundle_beside_executable(VnWorld *w) {
   }
 }
 
+// lilv 0.24 crashes on a relative LV2_PATH entry (it maps the bare path as
+// a URI and fails; lv2ls does the same). Hand it the same list with every
+// relative entry made absolute. Entries that do not exist are kept as they
+// are: lilv skips them.
+static void set_absolute_lv2_path(LilvWorld *world) {
+  const char *env = getenv("LV2_PATH");
+  if (!env || !*env) {
+    return;
+  }
+  VnText path = {0};
+  const char *entry = env;
+  while (*entry) {
+    const char *end = strchr(entry, ':');
+    const size_t len = end ? (size_t)(end - entry) : strlen(entry);
+    char part[PATH_MAX], absolute[PATH_MAX];
+    if (len > 0 && len < sizeof part) {
+      memcpy(part, entry, len);
+      part[len] = '\0';
+      const bool relative = part[0] != '/' && part[0] != '~';
+      vn_text_append(&path, "%s%s", path.length ? ":" : "",
+                     relative && realpath(part, absolute) ? absolute : part);
+    }
+    entry += len + (end ? 1 : 0);
+  }
+  if (path.length && !path.failed) {
+    LilvNode *value = lilv_new_string(world, vn_text_get(&path));
+    lilv_world_set_option(world, LILV_OPTION_LV2_PATH, value);
+    lilv_node_free(value);
+  }
+  vn_text_free(&path);
+}
+
 int vn_world_open(VnWorld *w) {
   memset(w, 0, sizeof *w);
   vn_urids_init(&w->urids);
@@ -129,6 +162,7 @@ int vn_world_open(VnWorld *w) {
       return VN_EXIT_PLUGIN;
     }
   }
+  set_absolute_lv2_path(w->lilv);
   lilv_world_load_all(w->lilv);
   if (!have_ours(w)) {
     load_bundle_beside_executable(w);

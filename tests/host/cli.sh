@@ -192,3 +192,15 @@ run_ok "$n" process -q -- -dash.wav -out.wav gain gain=-1 &&
   check "$n" AUDIO expect "$I/-out.wav" "$M" --scale -1
 cd "$SRCDIR" || exit 1
 rm -f "$I/-dash.wav" "$I/-out.wav"
+
+# lilv 0.24 (and its lv2ls) crashes on a relative LV2_PATH entry; the host
+# hands lilv the same list made absolute.
+rel=$(realpath --relative-to="$PWD" "$BUILD/asan/lv2")
+LV2_PATH="$rel" "$VERNIER" list >"$T/out" 2>"$T/err" </dev/null
+RC=$?
+expect_rc "a relative LV2_PATH works (list)" 0
+check "a relative LV2_PATH finds our plugins" grep -q '^gain ' "$T/out"
+LV2_PATH="$rel:no/such/folder" "$VERNIER" process -q "$M" "$O/rel.wav" \
+  gain gain=-1 >"$T/out" 2>"$T/err" </dev/null
+RC=$?
+expect_rc "a relative LV2_PATH works (process)" 0
