@@ -9,6 +9,7 @@ static const LV2_Descriptor *const descriptors[] = {
     &polarity_mono_descriptor, &polarity_stereo_descriptor,
     &rotate_mono_descriptor,   &rotate_stereo_descriptor,
     &allpass_mono_descriptor,  &allpass_stereo_descriptor,
+    &delay_mono_descriptor,    &delay_stereo_descriptor,
 };
 
 // Discovery thread.

@@ -8,7 +8,8 @@ AUDIO="$PY $SRCDIR/tests/tools/audio.py"
 BUNDLE="$BUILD/vernier.lv2"
 OURS="urn:vernier:gain-mono urn:vernier:gain-stereo urn:vernier:polarity-mono
 urn:vernier:polarity-stereo urn:vernier:rotate-mono urn:vernier:rotate-stereo
-urn:vernier:allpass-mono urn:vernier:allpass-stereo"
+urn:vernier:allpass-mono urn:vernier:allpass-stereo urn:vernier:delay-mono
+urn:vernier:delay-stereo"
 
 # Every .ttl of the bundle validates against the LV2 schemas Debian ships in
 # /usr/lib/lv2, with sord_validate (the validator of the sord package).
@@ -37,9 +38,9 @@ fi
 
 # lilv's lv2apply is a second, independent host: for float32 WAV input our
 # host's output is bit-identical to its output, plugin by plugin, with
-# non-default control values. (rotate.sh and allpass.sh do the same for
-# those two, shifting by the Phase Rotator's latency, which lv2apply does not
-# compensate.)
+# non-default control values. (rotate.sh, allpass.sh and delay.sh do the
+# same for those three, shifting by the Phase Rotator's and the Fine Delay's
+# latency, which lv2apply does not compensate.)
 $AUDIO noise "$T/mono.wav" --seconds 0.5 --seed 3
 $AUDIO noise "$T/stereo.wav" --seconds 0.5 --seed 4 --channels 2
 compare_with_lv2apply() { # name uri file "lv2apply -c args" "our settings"
