@@ -7,11 +7,13 @@
 #include <string.h>
 
 #include "args.h"
+#include "describe.h"
 #include "features.h"
 #include "instance.h"
 #include "json.h"
 #include "ports.h"
 #include "text.h"
+#include "time_value.h"
 #include "vernier.h"
 #include "world.h"
 
@@ -20,66 +22,25 @@
 #define RATE_MAX_HZ 768000.0
 
 static const char usage[] =
-    "usage: vernier describe [--rate HZ] [--json] NAME|URI\n"
+    "usage: vernier describe [--rate HZ] [--air-temp C] [--json] NAME|URI\n"
     "\n"
     "Shows one plugin: name, URI, short name, class, license, channels,\n"
     "latency at HZ (measured by instantiating it and running run(0)), every\n"
     "port with its default, range, unit and properties, and its presets.\n"
+    "A control in milliseconds (delay's delay) also shows its range in\n"
+    "frames at HZ and in metres of air at C.\n"
     "\n"
     "Options:\n"
     "  --rate HZ      sample rate for the latency, 8000..768000 (default "
     "48000)\n"
+    "  --air-temp C   air temperature for distances, -50..60 (default 20)\n"
     "  --json         print it as JSON on stdout\n"
     "  -h, --help     this help\n"
     "      --version  the version\n";
 
-typedef struct {
-  VnWorld world;
-  VnPluginInfo info;
-  VnPreset *presets;
-  size_t n_presets;
-  double rate_hz;
-  bool latency_known;
-  uint32_t latency_frames;
-  char class_name[128];
-  char short_name[256];
-  const char *license;
-  LilvNode *license_node;
-} Description;
-
-static const char *type_name(VnPortType type) {
-  switch (type) {
-  case VN_PORT_AUDIO:
-    return "audio";
-  case VN_PORT_CONTROL:
-    return "control";
-  case VN_PORT_ATOM:
-    return "atom";
-  case VN_PORT_CV:
-    return "cv";
-  default:
-    return "other";
-  }
-}
-
-static const struct {
-  unsigned prop;
-  const char *name;
-} prop_names[] = {
-    {VN_PROP_TOGGLED, "toggled"},
-    {VN_PROP_INTEGER, "integer"},
-    {VN_PROP_LOGARITHMIC, "logarithmic"},
-    {VN_PROP_ENUMERATION, "enumeration"},
-    {VN_PROP_LATENCY, "reportsLatency"},
-    {VN_PROP_SAMPLE_RATE, "sampleRate"},
-    {VN_PROP_OPTIONAL, "connectionOptional"},
-};
-
-#define N_PROPS (sizeof prop_names / sizeof prop_names[0])
-
 // lilv knows class labels only when lv2core's own data is loaded, which it
 // is not with LV2_PATH at build/; then the class URI's name has to do.
-static void find_class(Description *d) {
+static void find_class(VnDescription *d) {
   VnWorld *w = &d->world;
   const LilvPlugin *p = d->info.plugin;
   const LilvPluginClass *cls = lilv_plugin_get_class(p);
@@ -110,14 +71,14 @@ static void find_class(Description *d) {
 }
 
 static void port_properties(const VnPortInfo *port, VnText *t) {
-  for (size_t k = 0; k < N_PROPS; ++k) {
-    if (port->props & prop_names[k].prop) {
-      vn_text_append(t, "%s%s", t->length ? ", " : "", prop_names[k].name);
-    }
+  const char *names[16];
+  const size_t n = vn_port_property_names(port->props, names, 16);
+  for (size_t k = 0; k < n; ++k) {
+    vn_text_append(t, "%s%s", t->length ? ", " : "", names[k]);
   }
 }
 
-static void print_ports(const Description *d) {
+static void print_ports(const VnDescription *d) {
   VnTable table;
   vn_table_init(&table, 8);
   const char *header[] = {"#",       "symbol", "name", "kind",
@@ -127,7 +88,7 @@ static void print_ports(const Description *d) {
     const VnPortInfo *port = &d->info.ports[i];
     char index[16], kind[32], def[32] = "", range[80] = "";
     snprintf(index, sizeof index, "%u", port->index);
-    snprintf(kind, sizeof kind, "%s %s", type_name(port->type),
+    snprintf(kind, sizeof kind, "%s %s", vn_port_type_name(port->type),
              port->is_input ? "input" : "output");
     if (!isnan(port->default_value)) {
       vn_format_float(def, sizeof def, port->default_value);
@@ -164,12 +125,48 @@ static void print_ports(const Description *d) {
   }
 }
 
-static void print_text(const Description *d) {
+// Controls in ms: their range in frames and in metres of air, what
+// `vernier process` does beyond it, and the units it takes for them.
+static void print_times(const VnDescription *d) {
+  const VnTimeContext ctx = {d->rate_hz, d->air_temp_c};
+  const char *example = NULL;
+  for (uint32_t i = 0; i < d->info.n_ports; ++i) {
+    const VnPortInfo *port = &d->info.ports[i];
+    if (!vn_port_is_time(port) || isnan(port->minimum) ||
+        isnan(port->maximum)) {
+      continue;
+    }
+    printf("%s", example ? "" : "\nTimes:\n");
+    example = port->symbol;
+    VnText range = {0};
+    vn_time_describe_range(&range, port->minimum, port->maximum, &ctx);
+    char lo[32], hi[32];
+    vn_format_float(lo, sizeof lo, port->minimum);
+    vn_format_float(hi, sizeof hi, port->maximum);
+    printf("  %s: %s .. %s ms, %s\n", port->symbol, lo, hi,
+           vn_text_get(&range));
+    vn_text_free(&range);
+    if (vn_time_host_can_shift(d->info.uri, port->symbol)) {
+      printf("  beyond it, vernier process moves the file by whole frames, "
+             "up to %g s either way\n",
+             VN_HOST_SHIFT_MAX_S);
+    }
+  }
+  if (example) {
+    VnText units = {0};
+    vn_time_units_help(&units, &ctx);
+    printf("  vernier process takes %s=NUMBER[UNIT]: %s\n", example,
+           vn_text_get(&units));
+    vn_text_free(&units);
+  }
+}
+
+static void print_text(const VnDescription *d) {
   char latency[96], channels[64], rate[32];
   vn_format_float(rate, sizeof rate, (float)d->rate_hz);
   if (d->latency_known) {
-    snprintf(latency, sizeof latency, "%u frames at %s Hz", d->latency_frames,
-             rate);
+    snprintf(latency, sizeof latency, "%u frames at %s Hz (%.4g ms)",
+             d->latency_frames, rate, d->latency_frames * 1000.0 / d->rate_hz);
   } else {
     snprintf(latency, sizeof latency, "unknown (not instantiable here)");
   }
@@ -195,6 +192,7 @@ static void print_text(const Description *d) {
   lilv_node_free(name);
   printf("\nPorts:\n");
   print_ports(d);
+  print_times(d);
   printf("\nPresets:%s\n", d->n_presets ? "" : " none");
   VnTable presets;
   vn_table_init(&presets, 2);
@@ -206,82 +204,7 @@ static void print_text(const Description *d) {
   vn_table_free(&presets);
 }
 
-static void print_json(const Description *d) {
-  VnJson j;
-  vn_json_init(&j, stdout);
-  LilvNode *name = lilv_plugin_get_name(d->info.plugin);
-  vn_json_begin_object(&j);
-  vn_json_key(&j, "uri");
-  vn_json_string(&j, d->info.uri);
-  vn_json_key(&j, "name");
-  vn_json_string(&j, name ? lilv_node_as_string(name) : NULL);
-  vn_json_key(&j, "short_name");
-  vn_json_string(&j, d->short_name[0] ? d->short_name : NULL);
-  vn_json_key(&j, "class");
-  vn_json_string(&j, d->class_name);
-  vn_json_key(&j, "license");
-  vn_json_string(&j, d->license);
-  vn_json_key(&j, "channels");
-  vn_json_int(&j, d->info.n_audio_in);
-  vn_json_key(&j, "latency_frames");
-  if (d->latency_known) {
-    vn_json_int(&j, d->latency_frames);
-  } else {
-    vn_json_null(&j);
-  }
-  vn_json_key(&j, "sample_rate");
-  vn_json_double(&j, d->rate_hz);
-  vn_json_key(&j, "ports");
-  vn_json_begin_array(&j);
-  for (uint32_t i = 0; i < d->info.n_ports; ++i) {
-    const VnPortInfo *port = &d->info.ports[i];
-    vn_json_begin_object(&j);
-    vn_json_key(&j, "index");
-    vn_json_int(&j, port->index);
-    vn_json_key(&j, "symbol");
-    vn_json_string(&j, port->symbol);
-    vn_json_key(&j, "name");
-    vn_json_string(&j, port->name);
-    vn_json_key(&j, "type");
-    vn_json_string(&j, type_name(port->type));
-    vn_json_key(&j, "direction");
-    vn_json_string(&j, port->is_input ? "input" : "output");
-    vn_json_key(&j, "default");
-    vn_json_float(&j, port->default_value); // NAN (none) is null
-    vn_json_key(&j, "minimum");
-    vn_json_float(&j, port->minimum);
-    vn_json_key(&j, "maximum");
-    vn_json_float(&j, port->maximum);
-    vn_json_key(&j, "unit");
-    vn_json_string(&j, port->unit);
-    vn_json_key(&j, "properties");
-    vn_json_begin_array(&j);
-    for (size_t k = 0; k < N_PROPS; ++k) {
-      if (port->props & prop_names[k].prop) {
-        vn_json_string(&j, prop_names[k].name);
-      }
-    }
-    vn_json_end_array(&j);
-    vn_json_end_object(&j);
-  }
-  vn_json_end_array(&j);
-  vn_json_key(&j, "presets");
-  vn_json_begin_array(&j);
-  for (size_t i = 0; i < d->n_presets; ++i) {
-    vn_json_begin_object(&j);
-    vn_json_key(&j, "uri");
-    vn_json_string(&j, d->presets[i].uri);
-    vn_json_key(&j, "label");
-    vn_json_string(&j, d->presets[i].label);
-    vn_json_end_object(&j);
-  }
-  vn_json_end_array(&j);
-  vn_json_end_object(&j);
-  vn_json_finish(&j);
-  lilv_node_free(name);
-}
-
-static int describe(Description *d, const char *word, bool json) {
+static int describe(VnDescription *d, const char *word, bool json) {
   int rc = vn_world_open(&d->world);
   if (rc != VN_EXIT_OK) {
     return rc;
@@ -314,7 +237,7 @@ static int describe(Description *d, const char *word, bool json) {
                                      &d->latency_frames);
     d->latency_known = rc == VN_EXIT_OK;
   }
-  json ? print_json(d) : print_text(d);
+  json ? vn_describe_print_json(d) : print_text(d);
   return rc;
 }
 
@@ -329,8 +252,9 @@ static int parse_rate(const char *text, double *rate_hz) {
   return VN_EXIT_OK;
 }
 
-static int parse_args(int argc, char **argv, double *rate_hz, bool *json,
+static int parse_args(int argc, char **argv, VnDescription *d, bool *json,
                       const char **target) {
+  double *rate_hz = &d->rate_hz;
   VnArgs a;
   vn_args_init(&a, argc, argv);
   char *word = NULL;
@@ -353,14 +277,20 @@ static int parse_args(int argc, char **argv, double *rate_hz, bool *json,
         return VN_EXIT_USAGE;
       }
       *json = true;
+    } else if (vn_args_is(&a, "--air-temp", NULL)) {
+      const char *value =
+          vn_args_value(&a, "the air temperature in degrees Celsius");
+      if (!value || vn_parse_air_temp(value, &d->air_temp_c) != VN_EXIT_OK) {
+        return VN_EXIT_USAGE;
+      }
     } else if (vn_args_is(&a, "--rate", NULL)) {
       const char *value = vn_args_value(&a, "a sample rate in Hz");
       if (!value || parse_rate(value, rate_hz) != VN_EXIT_OK) {
         return VN_EXIT_USAGE;
       }
     } else {
-      vn_error("unknown option '%s'; describe options: --rate HZ, --json, "
-               "--help, --version",
+      vn_error("unknown option '%s'; describe options: --rate HZ, --air-temp "
+               "C, --json, --help, --version",
                word);
       return VN_EXIT_USAGE;
     }
@@ -374,15 +304,16 @@ static int parse_args(int argc, char **argv, double *rate_hz, bool *json,
 }
 
 int vn_describe_main(int argc, char **argv) {
-  Description *d = calloc(1, sizeof *d);
+  VnDescription *d = calloc(1, sizeof *d);
   if (!d) {
     vn_error("out of memory");
     return VN_EXIT_PLUGIN;
   }
   d->rate_hz = RATE_DEFAULT_HZ;
+  d->air_temp_c = VN_AIR_TEMP_DEFAULT_C;
   bool json = false;
   const char *target = NULL;
-  int rc = parse_args(argc, argv, &d->rate_hz, &json, &target);
+  int rc = parse_args(argc, argv, d, &json, &target);
   if (rc == VN_EXIT_OK) {
     rc = describe(d, target, json);
   } else if (rc < 0) {

@@ -91,18 +91,48 @@ static void interleave(const VnChain *c, uint32_t skip, uint32_t n,
   }
 }
 
+// A host shift S > L (a delay beyond the Fine Delay's range, later than the
+// chain's latency) starts OUT with S - L frames of silence; the input's
+// length plus the tail is all that is written.
+static int write_lead(VnProcess *p, uint64_t frames) {
+  const uint32_t channels = (uint32_t)p->input.info.channels;
+  memset(p->samples, 0, p->input.max_frames * channels * sizeof(float));
+  while (frames > 0) {
+    const size_t n =
+        frames < p->input.max_frames ? (size_t)frames : p->input.max_frames;
+    const int rc = vn_output_write(&p->output, p->samples, n);
+    if (rc != VN_EXIT_OK) {
+      return rc;
+    }
+    p->frames_written += n;
+    frames -= n;
+  }
+  return VN_EXIT_OK;
+}
+
 static int stream(VnProcess *p) {
   VnChain *c = &p->chain;
   const unsigned errors_before = vn_chain_errors(c);
   // Contract: feed the input, then L + tail zeros; drop the first L frames.
-  uint64_t zeros_left = c->latency_frames + p->tail_frames;
-  uint64_t drop_left = c->latency_frames;
+  // A host shift S moves OUT by S more frames: drop L - S (reading ahead in
+  // the file when S < 0), or write S - L frames of silence first.
+  const int64_t advance = (int64_t)c->latency_frames - p->shift_frames;
+  const int64_t zeros = advance + (int64_t)p->tail_frames;
+  uint64_t zeros_left = zeros > 0 ? (uint64_t)zeros : 0;
+  uint64_t drop_left = advance > 0 ? (uint64_t)advance : 0;
+  const uint64_t lead = advance < 0 ? (uint64_t)-advance : 0;
+  const uint64_t out_frames = (uint64_t)p->input.info.frames + p->tail_frames;
+  uint64_t keep_left = lead > out_frames ? 0 : out_frames - lead;
+  int rc = write_lead(p, lead < out_frames ? lead : out_frames);
+  if (rc != VN_EXIT_OK) {
+    return rc;
+  }
   const uint64_t total = (uint64_t)p->input.info.frames + zeros_left;
   uint64_t fed = 0;
   int shown = -1;
   bool input_done = false;
   for (;;) {
-    int rc = interrupted();
+    rc = interrupted();
     if (rc != VN_EXIT_OK) {
       return rc;
     }
@@ -135,6 +165,10 @@ static int stream(VnProcess *p) {
       drop_left -= skip;
       interleave(c, skip, n, p->samples + (size_t)kept * channels);
       kept += n - skip;
+    }
+    if (lead > 0) { // only then can the chain give more than OUT holds
+      kept = kept < keep_left ? kept : (uint32_t)keep_left;
+      keep_left -= kept;
     }
     if (kept > 0) {
       rc = vn_output_write(&p->output, p->samples, kept);
@@ -175,7 +209,10 @@ static int run(VnProcess *p) {
     rc = vn_world_open(&p->world);
   }
   if (rc == VN_EXIT_OK && (rc = interrupted()) == VN_EXIT_OK) {
-    rc = vn_steps_resolve(&p->steps, &p->world, rate_hz);
+    rc = vn_steps_resolve(&p->steps, &p->world, rate_hz, opt->air_temp_c);
+  }
+  for (size_t i = 0; rc == VN_EXIT_OK && i < p->steps.n_steps; ++i) {
+    p->shift_frames += p->steps.steps[i].host_shift_frames;
   }
   if (rc == VN_EXIT_OK) {
     rc = vn_chain_build(&p->chain, &p->world, &p->steps, channels, rate_hz,

@@ -24,6 +24,7 @@ typedef struct {
   uint32_t block_frames;
   double tail_s;
   const char *format; // --format, or NULL
+  double air_temp_c;  // --air-temp: what a distance means
   bool overwrite;
   bool json;
   bool quiet;
@@ -43,6 +44,8 @@ typedef struct {
   int format;
   uint64_t tail_frames;
   uint64_t frames_written;
+  // The sum of the steps' host shifts (negative: earlier), frames.
+  int64_t shift_frames;
 } VnProcess;
 
 // Returns an exit code; -1 when --help or --version was printed (exit 0).

@@ -5,6 +5,7 @@
 
 #include "args.h"
 #include "process.h"
+#include "time_value.h"
 #include "vernier.h"
 
 static const char usage[] =
@@ -14,11 +15,20 @@ static const char usage[] =
     "for sample with IN (each plugin's latency is compensated).\n"
     "\n"
     "STEP:  PLUGIN [SYMBOL=VALUE | @PRESET]...\n"
-    "  PLUGIN   one of ours by short name (gain, polarity, rotate, allpass;\n"
-    "           NAME-stereo for the stereo variant) or any plugin's URI\n"
-    "           (see 'vernier list')\n"
+    "  PLUGIN   one of ours by short name (gain, polarity, rotate, allpass,\n"
+    "           delay; NAME-stereo for the stereo variant) or any plugin's\n"
+    "           URI (see 'vernier list')\n"
     "  SYMBOL=VALUE  a control input by its symbol (see 'vernier describe')\n"
     "  @PRESET  a preset by label or URI, applied before the step's values\n"
+    "\n"
+    "Times: a control in milliseconds (delay's delay) takes a unit after\n"
+    "the number: ms (the default), us, s, smp (samples at IN's rate), or a\n"
+    "distance of air, m, cm, mm, ft, in (343.2 m/s at 20 C; --air-temp):\n"
+    "  delay=1.5ms  delay=-0.37smp  delay=34cm  delay=-2.1m  delay=7ft\n"
+    "Beyond delay's own -20 .. +100 ms, the host moves the file by the\n"
+    "whole frames outside that range (up to 60 s either way: what moves\n"
+    "before the start is cut, the end is padded with silence) and the\n"
+    "plugin does the rest.\n"
     "\n"
     "Options:\n"
     "  --block N          frames per run() call, 1..65536 (default 512)\n"
@@ -27,14 +37,16 @@ static const char usage[] =
     "                     wav wavex w64 rf64 aiff caf flac ogg;\n"
     "                     pcm16 pcm24 pcm32 float double (vorbis for ogg);\n"
     "                     default: the input's format\n"
+    "  --air-temp C       air temperature for distances, -50..60 (default 20)\n"
     "  --overwrite        replace OUT if it exists\n"
     "  --json             print a JSON summary on stdout\n"
     "  -q, --quiet        no progress and no summary on stderr\n"
     "  -h, --help         this help\n"
     "      --version      the version\n"
     "\n"
-    "Example:\n"
-    "  vernier process di.wav di-fixed.wav polarity invert=on gain gain=-0.5\n";
+    "Examples:\n"
+    "  vernier process di.wav di-fixed.wav polarity invert=on gain gain=-0.5\n"
+    "  vernier process amp.wav amp-early.wav delay delay=-1.37ms\n";
 
 static int parse_block(const char *text, uint32_t *frames) {
   long long n = 0;
@@ -68,6 +80,10 @@ static int parse_option(VnProcessOptions *opt, VnArgs *a, const char *word) {
     value = vn_args_value(a, "seconds to add after the input ends, >= 0");
     return value ? parse_tail(value, &opt->tail_s) : VN_EXIT_USAGE;
   }
+  if (vn_args_is(a, "--air-temp", NULL)) {
+    value = vn_args_value(a, "the air temperature in degrees Celsius");
+    return value ? vn_parse_air_temp(value, &opt->air_temp_c) : VN_EXIT_USAGE;
+  }
   if (vn_args_is(a, "--format", NULL)) {
     opt->format = vn_args_value(a, "CONTAINER[:ENCODING], such as wav:pcm24");
     return opt->format ? VN_EXIT_OK : VN_EXIT_USAGE;
@@ -81,8 +97,8 @@ static int parse_option(VnProcessOptions *opt, VnArgs *a, const char *word) {
     return vn_args_flag(a) ? VN_EXIT_OK : VN_EXIT_USAGE;
   }
   vn_error("unknown option '%s'; process options: --block N, --tail SECONDS, "
-           "--format CONTAINER[:ENCODING], --overwrite, --json, -q, --help, "
-           "--version",
+           "--format CONTAINER[:ENCODING], --air-temp C, --overwrite, --json, "
+           "-q, --help, --version",
            word);
   return VN_EXIT_USAGE;
 }
@@ -90,6 +106,7 @@ static int parse_option(VnProcessOptions *opt, VnArgs *a, const char *word) {
 int vn_process_parse(VnProcessOptions *opt, int argc, char **argv) {
   memset(opt, 0, sizeof *opt);
   opt->block_frames = VN_BLOCK_DEFAULT_FRAMES;
+  opt->air_temp_c = VN_AIR_TEMP_DEFAULT_C;
   opt->step_words = calloc((size_t)argc + 1, sizeof *opt->step_words);
   if (!opt->step_words) {
     vn_error("out of memory");

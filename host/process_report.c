@@ -3,6 +3,7 @@
 // clipping, one summary line on stderr, and the --json document on stdout.
 #include <inttypes.h>
 #include <stdio.h>
+#include <stdlib.h>
 
 #include "format.h"
 #include "json.h"
@@ -29,6 +30,8 @@ static void write_json(const VnProcess *p, const char *format_name) {
   vn_json_int(&j, (int64_t)p->chain.latency_frames);
   vn_json_key(&j, "tail_frames");
   vn_json_int(&j, (int64_t)p->tail_frames);
+  vn_json_key(&j, "shift_frames");
+  vn_json_int(&j, p->shift_frames);
   vn_json_key(&j, "steps");
   vn_json_begin_array(&j);
   for (size_t s = 0; s < p->chain.n_steps; ++s) {
@@ -41,6 +44,8 @@ static void write_json(const VnProcess *p, const char *format_name) {
     vn_json_int(&j, (int64_t)cs->n_instances);
     vn_json_key(&j, "latency_frames");
     vn_json_int(&j, cs->latency_frames);
+    vn_json_key(&j, "host_shift_frames");
+    vn_json_int(&j, cs->step->host_shift_frames);
     vn_json_key(&j, "controls");
     vn_json_begin_object(&j);
     for (uint32_t i = 0; i < info->n_ports; ++i) {
@@ -76,12 +81,20 @@ void vn_process_report(const VnProcess *p) {
   }
   if (!p->opt.quiet) {
     const int channels = p->input.info.channels;
+    char shift[96] = "";
+    if (p->shift_frames != 0) {
+      snprintf(shift, sizeof shift,
+               ", shifted %" PRIu64 " frames %s by the host",
+               (uint64_t)llabs(p->shift_frames),
+               p->shift_frames < 0 ? "earlier" : "later");
+    }
     fprintf(stderr,
             "vernier: wrote %s: %" PRIu64 " frames, %d %s, %d Hz, %s, "
-            "latency %" PRIu64 " frames compensated, %" PRIu64 " clipped\n",
+            "latency %" PRIu64 " frames compensated%s, %" PRIu64 " clipped\n",
             out, p->frames_written, channels,
             channels == 1 ? "channel" : "channels", p->input.info.samplerate,
-            format_name, p->chain.latency_frames, p->output.clipped_samples);
+            format_name, p->chain.latency_frames, shift,
+            p->output.clipped_samples);
   }
   if (p->opt.json) {
     write_json(p, format_name);

@@ -12,12 +12,8 @@
 #include "args.h"
 #include "json.h"
 #include "text.h"
+#include "values.h"
 #include "vernier.h"
-
-// Converting a double beyond FLT_MAX to float is undefined behaviour.
-static bool fits_float(double d) {
-  return fabs(d) <= FLT_MAX;
-}
 
 // ASCII classes by hand: the locale must not change what a STEP word means.
 static bool is_symbol_start(char c) {
@@ -52,7 +48,8 @@ int vn_steps_parse(VnSteps *s, char *const *words, size_t n_words) {
   if (vn_word_is_setting(words[0])) {
     vn_error(
         "'%s' is a setting, but no plugin comes before it; a STEP "
-        "starts with a plugin name (gain, polarity, rotate, allpass) or a URI",
+        "starts with a plugin name (gain, polarity, rotate, allpass, delay) "
+        "or a URI",
         words[0]);
     return VN_EXIT_USAGE;
   }
@@ -123,115 +120,6 @@ static void list_controls(VnText *t, const VnPluginInfo *info) {
   }
 }
 
-// Six significant digits: a bound scaled by the sample rate (0.001 * 48000)
-// reads 48, not 48.000004.
-static void describe_range(VnText *t, float lo, float hi) {
-  char a[32], b[32];
-  snprintf(a, sizeof a, "%g", (double)lo);
-  snprintf(b, sizeof b, "%g", (double)hi);
-  if (!isnan(lo) && !isnan(hi)) {
-    vn_text_append(t, "%s .. %s", a, b);
-  } else if (!isnan(lo)) {
-    vn_text_append(t, ">= %s", a);
-  } else if (!isnan(hi)) {
-    vn_text_append(t, "<= %s", b);
-  } else {
-    vn_text_append(t, "any number");
-  }
-}
-
-static int parse_toggle(const VnStep *step, const VnSetting *set,
-                        float *value) {
-  static const struct {
-    const char *word;
-    float value;
-  } words[] = {{"on", 1},  {"off", 0}, {"true", 1}, {"false", 0},
-               {"yes", 1}, {"no", 0},  {"1", 1},    {"0", 0}};
-  for (size_t i = 0; i < sizeof words / sizeof words[0]; ++i) {
-    if (strcasecmp(set->value_text, words[i].word) == 0) {
-      *value = words[i].value;
-      return VN_EXIT_OK;
-    }
-  }
-  vn_error("%s: %s is not a toggle value; allowed: on, off, true, false, "
-           "yes, no, 1, 0",
-           step->word, set->word);
-  return VN_EXIT_USAGE;
-}
-
-static int parse_enumeration(const VnStep *step, const VnPortInfo *port,
-                             const VnSetting *set, float *value) {
-  double number = 0;
-  const bool is_number = vn_parse_number(set->value_text, &number);
-  for (size_t i = 0; i < port->n_points; ++i) {
-    if (strcmp(port->points[i].label, set->value_text) == 0 ||
-        (is_number && fits_float(number) &&
-         (float)number == port->points[i].value)) {
-      *value = port->points[i].value;
-      return VN_EXIT_OK;
-    }
-  }
-  for (size_t i = 0; i < port->n_points; ++i) {
-    if (strcasecmp(port->points[i].label, set->value_text) == 0) {
-      *value = port->points[i].value;
-      return VN_EXIT_OK;
-    }
-  }
-  VnText allowed = {0};
-  for (size_t i = 0; i < port->n_points; ++i) {
-    char v[32];
-    vn_format_float(v, sizeof v, port->points[i].value);
-    vn_text_append(&allowed, "%s%s (%s)", i ? ", " : "", port->points[i].label,
-                   v);
-  }
-  vn_error("%s: %s is not one of the values of '%s': %s", step->word, set->word,
-           port->symbol, vn_text_get(&allowed));
-  vn_text_free(&allowed);
-  return VN_EXIT_USAGE;
-}
-
-// The VALUE rules of the contract: toggles by word, enumerations by label
-// or value, integers whole, everything finite and within the port's range.
-static int parse_value(const VnStep *step, const VnPortInfo *port,
-                       const VnSetting *set, double rate_hz, float *value) {
-  if (port->props & VN_PROP_TOGGLED) {
-    return parse_toggle(step, set, value);
-  }
-  if ((port->props & VN_PROP_ENUMERATION) && port->n_points > 0) {
-    return parse_enumeration(step, port, set, value);
-  }
-  float lo, hi;
-  vn_port_bounds(port, rate_hz, &lo, &hi);
-  double number = 0;
-  if (!vn_parse_number(set->value_text, &number)) {
-    VnText range = {0};
-    describe_range(&range, lo, hi);
-    vn_error("%s: %s is not a number (allowed: %s)", step->word, set->word,
-             vn_text_get(&range));
-    vn_text_free(&range);
-    return VN_EXIT_USAGE;
-  }
-  if ((port->props & VN_PROP_INTEGER) && number != nearbyint(number)) {
-    vn_error("%s: %s is not an integer; '%s' takes whole numbers", step->word,
-             set->word, port->symbol);
-    return VN_EXIT_USAGE;
-  }
-  // Compared as floats, because the bounds are floats: 0.7 is within a
-  // maximum written as 0.7 even though the double 0.7 is above 0.7f. What
-  // no float holds (1e300) is out of any range.
-  const float v = fits_float(number) ? (float)number : NAN;
-  if (isnan(v) || (!isnan(lo) && v < lo) || (!isnan(hi) && v > hi)) {
-    VnText range = {0};
-    describe_range(&range, lo, hi);
-    vn_error("%s: %s is out of range %s", step->word, set->word,
-             vn_text_get(&range));
-    vn_text_free(&range);
-    return VN_EXIT_USAGE;
-  }
-  *value = v;
-  return VN_EXIT_OK;
-}
-
 typedef struct {
   VnStep *step;
   VnWorld *world;
@@ -256,7 +144,7 @@ static void set_port_value(const char *symbol, void *user_data,
   } else if (type == t->world->atom_double && size == sizeof(double)) {
     double d;
     memcpy(&d, value, sizeof d);
-    f = fits_float(d) ? (float)d : NAN;
+    f = vn_fits_float(d) ? (float)d : NAN;
   } else if ((type == t->world->atom_int || type == t->world->atom_bool) &&
              size == sizeof(int32_t)) {
     int32_t i;
@@ -322,7 +210,8 @@ static int resolve_presets(VnStep *step, VnWorld *w) {
   return rc;
 }
 
-static int resolve_step(VnStep *step, VnWorld *w, double rate_hz) {
+static int resolve_step(VnStep *step, VnWorld *w, const VnTimeContext *ctx) {
+  const double rate_hz = ctx->rate_hz;
   const LilvPlugin *plugin = vn_world_find_plugin(w, step->word);
   if (!plugin) {
     return vn_world_unknown_plugin(w, step->word);
@@ -358,17 +247,24 @@ static int resolve_step(VnStep *step, VnWorld *w, double rate_hz) {
       vn_text_free(&controls);
       return VN_EXIT_USAGE;
     }
-    rc = parse_value(step, port, set, rate_hz, &set->value);
+    int64_t host_frames = 0;
+    rc = vn_value_parse(step, port, set, ctx, &set->value, &host_frames);
     if (rc == VN_EXIT_OK) {
       step->controls[port->index] = set->value;
+      // The last setting of a control wins, its host shift with it.
+      if (vn_time_host_can_shift(info->uri, port->symbol)) {
+        step->host_shift_frames = host_frames;
+      }
     }
   }
   return rc;
 }
 
-int vn_steps_resolve(VnSteps *s, VnWorld *w, double rate_hz) {
+int vn_steps_resolve(VnSteps *s, VnWorld *w, double rate_hz,
+                     double air_temp_c) {
+  const VnTimeContext ctx = {rate_hz, air_temp_c};
   for (size_t i = 0; i < s->n_steps; ++i) {
-    const int rc = resolve_step(&s->steps[i], w, rate_hz);
+    const int rc = resolve_step(&s->steps[i], w, &ctx);
     if (rc != VN_EXIT_OK) {
       return rc;
     }

@@ -6,6 +6,7 @@
 
 #include <stdbool.h>
 #include <stddef.h>
+#include <stdint.h>
 
 #include <lilv/lilv.h>
 
@@ -30,6 +31,9 @@ typedef struct {
   VnPluginInfo info;
   LilvState **presets; // one per preset_names entry
   float *controls;     // one per port; the value of each control input
+  // Whole frames the host moves the file by for a delay beyond the Fine
+  // Delay's range (negative: earlier); 0 for every other step.
+  int64_t host_shift_frames;
 } VnStep;
 
 typedef struct {
@@ -44,8 +48,9 @@ bool vn_word_is_setting(const char *word);
 // Syntax only. Returns an exit code (the error printed).
 int vn_steps_parse(VnSteps *s, char *const *words, size_t n_words);
 // Finds each plugin, loads its presets, sets and checks every control value
-// at rate_hz. Returns an exit code (the error printed).
-int vn_steps_resolve(VnSteps *s, VnWorld *w, double rate_hz);
+// at rate_hz (times in distances at air_temp_c). Returns an exit code (the
+// error printed).
+int vn_steps_resolve(VnSteps *s, VnWorld *w, double rate_hz, double air_temp_c);
 void vn_steps_free(VnSteps *s);
 
 #endif
