@@ -5,8 +5,9 @@
 
 A made-up bass line (E1 and A1 notes, 41.2 Hz and 55 Hz, with harmonics)
 recorded twice: straight from the instrument (the DI) and through an
-imaginary amp and microphone whose cable has pins 2 and 3 swapped, so the amp
-path arrives inverted, a little duller and 2 dB lower. 48 kHz, float32, 4 s.
+imaginary amp and microphone 47 cm from the speaker, whose cable has pins 2
+and 3 swapped: the amp path arrives 1.37 ms late (65.76 samples, a fraction
+included), inverted, a little duller and 2 dB lower. 48 kHz, float32, 4 s.
 """
 import os
 import sys
@@ -30,12 +31,24 @@ def bass_line(seconds=4.0):
     return x
 
 
+LATE_MS = 1.37
+
+
+def late(x, frames):
+    # An exact band-limited delay by a fractional number of frames, done in
+    # the frequency domain over a zero-padded block.
+    n = 1 << int(np.ceil(np.log2(len(x) + 4 * frames + 1024)))
+    spectrum = np.fft.rfft(x, n)
+    spectrum *= np.exp(-2j * np.pi * np.fft.rfftfreq(n) * frames)
+    return np.fft.irfft(spectrum, n)[: len(x)]
+
+
 def main():
     out = sys.argv[1]
     os.makedirs(out, exist_ok=True)
     di = bass_line()
     amp = sosfilt(butter(2, 1800, fs=RATE, output="sos"), di)
-    amp = -10 ** (-2 / 20) * amp
+    amp = -10 ** (-2 / 20) * late(amp, LATE_MS * 1e-3 * RATE)
     wavfile.write(os.path.join(out, "bass-di.wav"), RATE, di.astype(np.float32))
     wavfile.write(os.path.join(out, "bass-amp.wav"), RATE, amp.astype(np.float32))
 
