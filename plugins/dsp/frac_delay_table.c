@@ -1,21 +1,10 @@
 // SPDX-License-Identifier: GPL-3.0-or-later
 #include "frac_delay_table.h"
 
+#include "kaiser.h"
+
 #include <math.h>
 #include <stdlib.h>
-
-// Modified Bessel function of the first kind, order 0, by its power series
-// sum ((x/2)^k / k!)^2; for beta near 7 it converges to double precision in
-// about 30 terms.
-static double bessel_i0(double x) {
-  const double q = 0.25 * x * x;
-  double term = 1.0, sum = 1.0;
-  for (int k = 1; k < 200 && term > 1e-17 * sum; ++k) {
-    term *= q / ((double)k * (double)k);
-    sum += term;
-  }
-  return sum;
-}
 
 double frac_delay_table_beta(void) {
   // Kaiser's length formula solved for the attenuation, then his beta
@@ -23,7 +12,7 @@ double frac_delay_table_beta(void) {
   const double transition_rad = 2.0 * M_PI * (1.0 - FRAC_DELAY_BAND_EDGE);
   const double attenuation_db =
       7.95 + 2.285 * (double)(FRAC_DELAY_TAPS - 1) * transition_rad;
-  return 0.1102 * (attenuation_db - 8.7);
+  return kaiser_beta(attenuation_db);
 }
 
 // sin(pi u) / (pi u), exactly 0 at whole u other than 0, so that the rows of
@@ -42,12 +31,12 @@ static double sinc(double u) {
 // to a DC gain of 1 (in double, before rounding to float).
 static void design_row(float *row, uint32_t p, double beta) {
   const double mu = (double)p / FRAC_DELAY_PHASES;
-  const double half = FRAC_DELAY_HALF_TAPS, norm = 1.0 / bessel_i0(beta);
+  const double half = FRAC_DELAY_HALF_TAPS;
   double h[FRAC_DELAY_TAPS], sum = 0.0;
   for (uint32_t m = 0; m < FRAC_DELAY_TAPS; ++m) {
     const double u = (half - (double)m) - mu; // j - mu
     const double r = u / half;
-    const double w = bessel_i0(beta * sqrt(fmax(0.0, 1.0 - r * r))) * norm;
+    const double w = kaiser_window(r, beta);
     h[m] = w * sinc(u);
     sum += h[m];
   }

@@ -34,9 +34,6 @@
 // allowed.
 #define HILBERT_ATTENUATION_DB 50.0
 
-// Kaiser's beta for an attenuation in dB.
-double hilbert_kaiser_beta(double attenuation_db);
-
 // The attenuation n_taps afford with a transition of 2 x HILBERT_EDGE_HZ
 // (Kaiser's length formula solved for it): HILBERT_ATTENUATION_DB or more
 // from hilbert_min_taps() up.
