@@ -48,7 +48,8 @@ int vn_steps_parse(VnSteps *s, char *const *words, size_t n_words) {
   if (vn_word_is_setting(words[0])) {
     vn_error(
         "'%s' is a setting, but no plugin comes before it; a STEP "
-        "starts with a plugin name (gain, polarity, rotate, allpass, delay) "
+        "starts with a plugin name (gain, polarity, rotate, allpass, delay, "
+        "strip) "
         "or a URI",
         words[0]);
     return VN_EXIT_USAGE;

@@ -10,6 +10,7 @@ static const LV2_Descriptor *const descriptors[] = {
     &rotate_mono_descriptor,   &rotate_stereo_descriptor,
     &allpass_mono_descriptor,  &allpass_stereo_descriptor,
     &delay_mono_descriptor,    &delay_stereo_descriptor,
+    &strip_mono_descriptor,    &strip_stereo_descriptor,
 };
 
 // Discovery thread.

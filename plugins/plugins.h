@@ -17,6 +17,8 @@ extern const LV2_Descriptor allpass_mono_descriptor;
 extern const LV2_Descriptor allpass_stereo_descriptor;
 extern const LV2_Descriptor delay_mono_descriptor;
 extern const LV2_Descriptor delay_stereo_descriptor;
+extern const LV2_Descriptor strip_mono_descriptor;
+extern const LV2_Descriptor strip_stereo_descriptor;
 
 // Audio port index of channel ch in a variant with n_channels channels and
 // n_controls control ports first: inputs, then outputs.

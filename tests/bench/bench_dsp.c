@@ -73,6 +73,8 @@ static const bench_case_t cases[] = {
     {"urn:vernier:delay-mono", "delay=1.2345", DENORMAL_INPUT},
     {"urn:vernier:delay-stereo", "delay=-7.89", 0},
     {"urn:vernier:delay-stereo", "delay=-7.89", MOVING | MOVING_HAS_TARGET},
+    {"urn:vernier:strip-mono",
+     "invert=1 delay=1.2345 angle=37 frequency=300 stages=2 gain=0.8", 0},
 };
 
 typedef struct {
