@@ -12,17 +12,11 @@ The response is measured by a DFT of the impulse response, H(w) = sum h[n]
 e^(-jwn), and its group delay exactly as Re{sum n h[n] e^(-jwn) / H(w)}.
 """
 import sys
-import warnings
 
 import numpy as np
 from scipy import signal
-from scipy.io import wavfile
 
-
-def arg(name, default, cast=float):
-    if name in sys.argv:
-        return cast(sys.argv[sys.argv.index(name) + 1])
-    return default
+from wavtools import arg, read, write
 
 
 def rbj_allpass(f0, q, rate):
@@ -88,12 +82,8 @@ class Checks:
 
 
 def check(path, f0, q, stages, order):
-    with warnings.catch_warnings():  # hosts may add chunks scipy skips
-        warnings.simplefilter("ignore", wavfile.WavFileWarning)
-        rate, h = wavfile.read(path)
-    h = h.astype(np.float64)
-    if h.ndim > 1:
-        h = h[:, 0]
+    rate, h = read(path)
+    h = h[:, 0].astype(np.float64)
     c = Checks()
     label = "f0 %g Hz q %g x%d order %d at %d Hz" % (f0, q, stages, order, rate)
     for ratio in (0.5, 1.0, 2.0):
@@ -156,7 +146,7 @@ def main():
         rate = arg("--rate", 48000, int)
         x = np.zeros(frames_needed(f0, q, rate, stages, order), np.float32)
         x[0] = 1.0
-        wavfile.write(path, rate, x)
+        write(path, rate, x)
     elif cmd == "check":
         sys.exit(1 if check(path, f0, q, stages, order) else 0)
     else:

@@ -10,24 +10,10 @@
   audio.py level A.wav                   RMS level in dB re full scale
 """
 import sys
-import warnings
 
 import numpy as np
-from scipy.io import wavfile
 
-# libsndfile adds chunks (PEAK, LIST) that scipy reads past with a warning.
-warnings.simplefilter("ignore", wavfile.WavFileWarning)
-
-
-def arg(name, default, cast=float):
-    if name in sys.argv:
-        return cast(sys.argv[sys.argv.index(name) + 1])
-    return default
-
-
-def read(path):
-    rate, data = wavfile.read(path)
-    return rate, data
+from wavtools import arg, read, write
 
 
 def main():
@@ -38,13 +24,13 @@ def main():
         n = int(round(arg("--seconds", 1.0) * rate))
         rng = np.random.default_rng(arg("--seed", 1, int))
         x = rng.uniform(-1, 1, size=(n, ch)) * arg("--peak", 0.5)
-        wavfile.write(rest[0], rate, x.astype(np.float32).squeeze())
+        write(rest[0], rate, x)
     elif cmd == "sine":
         rate = arg("--rate", 48000, int)
         n = int(round(arg("--seconds", 1.0) * rate))
         t = np.arange(n) / rate
         x = arg("--peak", 0.5) * np.sin(2 * np.pi * arg("--freq", 100.0) * t)
-        wavfile.write(rest[0], rate, x.astype(np.float32))
+        write(rest[0], rate, x)
     elif cmd == "same":
         (ra, a), (rb, b) = read(rest[0]), read(rest[1])
         ok = ra == rb and a.dtype == b.dtype and a.shape == b.shape
@@ -61,7 +47,7 @@ def main():
         sys.exit(0 if ok else 1)
     elif cmd == "sum":
         (ra, a), (_, b) = read(rest[0]), read(rest[1])
-        wavfile.write(rest[2], ra, (a.astype(np.float32) + b.astype(np.float32)))
+        write(rest[2], ra, a.astype(np.float32) + b.astype(np.float32))
     elif cmd == "level":
         _, a = read(rest[0])
         rms = np.sqrt(np.mean(a.astype(np.float64) ** 2))

@@ -22,28 +22,16 @@ transform's circular wrap-around moves only silence.
         the speed of sound at T degrees C, m/s, and the ms per metre
 """
 import sys
-import warnings
 
 import numpy as np
-from scipy.io import wavfile
 
-# Hosts add chunks (broadcast-WAV and the like) that wavfile skips, loudly.
-warnings.simplefilter("ignore", wavfile.WavFileWarning)
+from wavtools import arg, band, read, write
 
 
-def arg(name, default, cast=float):
-    if name in sys.argv:
-        return cast(sys.argv[sys.argv.index(name) + 1])
-    return default
 
 
-def read(path):
-    rate, data = wavfile.read(path)
-    return rate, data.reshape(len(data), -1).astype(np.float64)
 
 
-def band(freqs, lo, hi):
-    return (freqs >= lo) & (freqs <= hi)
 
 
 def burst(path):
@@ -62,7 +50,7 @@ def burst(path):
                 arg("--hi", 20000.0))
     x = np.fft.irfft(np.fft.rfft(x, axis=0) * keep[:, None], n, axis=0)
     x *= 0.5 / np.max(np.abs(x))
-    wavfile.write(path, rate, x.astype(np.float32).squeeze())
+    write(path, rate, x)
 
 
 def shifted(x, rate, d):
@@ -91,12 +79,13 @@ def main():
         (rate, x), (rate_y, y) = read(rest[0]), read(rest[1])
         if rate != rate_y or x.shape != y.shape:
             sys.exit("different rates, lengths or channel counts")
+        x, y = x.astype(np.float64), y.astype(np.float64)
         db = error_db(x, y, rate, arg("--delay", 0.0), arg("--lo", 20.0),
                       arg("--hi", 20000.0))
         print("%.2f dB" % db)
         sys.exit(0 if db < arg("--below", -60.0) else 1)
     elif cmd == "same-shifted":
-        (_, a), (_, b) = wavfile.read(rest[0]), wavfile.read(rest[1])
+        (_, a), (_, b) = read(rest[0]), read(rest[1])
         n = int(rest[2])
         a, b = a[n:], b[:len(a) - n]
         ok = a.dtype == b.dtype and a.shape == b.shape

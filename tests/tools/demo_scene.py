@@ -13,8 +13,9 @@ import os
 import sys
 
 import numpy as np
-from scipy.io import wavfile
 from scipy.signal import butter, sosfilt
+
+from wavtools import write
 
 RATE = 48000
 
@@ -49,8 +50,8 @@ def main():
     di = bass_line()
     amp = sosfilt(butter(2, 1800, fs=RATE, output="sos"), di)
     amp = -10 ** (-2 / 20) * late(amp, LATE_MS * 1e-3 * RATE)
-    wavfile.write(os.path.join(out, "bass-di.wav"), RATE, di.astype(np.float32))
-    wavfile.write(os.path.join(out, "bass-amp.wav"), RATE, amp.astype(np.float32))
+    write(os.path.join(out, "bass-di.wav"), RATE, di)
+    write(os.path.join(out, "bass-amp.wav"), RATE, amp)
 
 
 if __name__ == "__main__":

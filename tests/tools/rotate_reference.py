@@ -30,33 +30,19 @@ comparison leaves out the ends, where our causal FIR starts and stops.
         the frame of the largest magnitude (a pure delay's latency)
 """
 import sys
-import warnings
 
 import numpy as np
-from scipy.io import wavfile
 from scipy.signal import hilbert
 
-# Hosts add chunks (broadcast-WAV and the like) that wavfile skips, loudly.
-warnings.simplefilter("ignore", wavfile.WavFileWarning)
+from wavtools import arg, band, read, write
 
 
-def arg(name, default, cast=float):
-    if name in sys.argv:
-        return cast(sys.argv[sys.argv.index(name) + 1])
-    return default
 
 
-def read(path):
-    rate, data = wavfile.read(path)
-    return rate, data.reshape(len(data), -1)  # frames x channels
 
 
-def write(path, rate, data):
-    wavfile.write(path, rate, data.astype(np.float32).squeeze())
 
 
-def band(freqs, lo, hi):
-    return (freqs >= lo) & (freqs <= hi)
 
 
 def bandnoise(path):

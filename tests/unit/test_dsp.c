@@ -15,16 +15,9 @@
 #include "dsp/bipolar_gain.h"
 #include "dsp/polarity.h"
 #include "dsp/smoother.h"
+#include "noise.h"
 
 #define RATE_HZ 48000.0
-
-// Deterministic noise in [-1, 1) (a 32-bit LCG; Numerical Recipes constants).
-static void fill_noise(float *x, size_t n, uint32_t seed) {
-  for (size_t i = 0; i < n; ++i) {
-    seed = seed * 1664525u + 1013904223u;
-    x[i] = (float)((double)seed / 2147483648.0 - 1.0);
-  }
-}
 
 // ------------------------------------------------------------- smoother ----
 

@@ -15,6 +15,9 @@
 
 #include <lv2/core/lv2.h>
 
+#include "descriptor.h"
+#include "noise.h"
+
 #define MAX_PORTS 8
 #define MAX_CH 2
 
@@ -33,22 +36,6 @@ static const Layout layouts[] = {
 };
 #define N_LAYOUTS (sizeof layouts / sizeof layouts[0])
 
-static const LV2_Descriptor *find(const char *uri) {
-  for (uint32_t i = 0; lv2_descriptor(i); ++i) {
-    if (!strcmp(lv2_descriptor(i)->URI, uri)) {
-      return lv2_descriptor(i);
-    }
-  }
-  return NULL;
-}
-
-static void fill_noise(float *x, size_t n, uint32_t seed) {
-  for (size_t i = 0; i < n; ++i) {
-    seed = seed * 1664525u + 1013904223u; // Numerical Recipes LCG
-    x[i] = (float)((double)seed / 2147483648.0 - 1.0);
-  }
-}
-
 // One plugin instance with its ports connected to our buffers.
 typedef struct {
   const LV2_Descriptor *d;
@@ -59,7 +46,7 @@ typedef struct {
 
 static void rig_open(Rig *r, const Layout *l, double rate_hz) {
   r->layout = l;
-  r->d = find(l->uri);
+  r->d = find_descriptor(l->uri);
   assert_non_null(r->d);
   r->h = r->d->instantiate(r->d, rate_hz, "/nonexistent/", NULL);
   assert_non_null(r->h);
@@ -98,7 +85,7 @@ static void descriptors_listed(void **state) {
   }
   assert_true(n >= N_LAYOUTS);
   for (size_t i = 0; i < N_LAYOUTS; ++i) {
-    assert_non_null(find(layouts[i].uri));
+    assert_non_null(find_descriptor(layouts[i].uri));
   }
   assert_null(lv2_descriptor(1000));
 }
