@@ -4,6 +4,7 @@
 #include <ctype.h>
 #include <errno.h>
 #include <math.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -94,4 +95,16 @@ bool vn_parse_integer(const char *text, long long *value) {
   }
   *value = v;
   return true;
+}
+
+bool vn_args_help_or_version(const VnArgs *a, const char *usage) {
+  if (vn_args_is(a, "--help", "-h")) {
+    fputs(usage, stdout);
+    return true;
+  }
+  if (vn_args_is(a, "--version", NULL)) {
+    printf("vernier %s\n", VERNIER_VERSION);
+    return true;
+  }
+  return false;
 }

@@ -30,6 +30,9 @@ bool vn_args_is(const VnArgs *a, const char *long_name, const char *short_name);
 const char *vn_args_value(VnArgs *a, const char *what);
 // A flag takes no "=value"; false, with the error printed, when it has one.
 bool vn_args_flag(const VnArgs *a);
+// Every sub-command's --help (prints usage) and --version: true when the
+// current option was one of them and has been answered on stdout.
+bool vn_args_help_or_version(const VnArgs *a, const char *usage);
 
 // strtod over the whole word, finite. Spaces, "", "1x", "nan", "inf" fail.
 bool vn_parse_number(const char *text, double *value);

@@ -266,11 +266,7 @@ static int parse_args(int argc, char **argv, VnDescription *d, bool *json,
         return VN_EXIT_USAGE;
       }
       *target = word;
-    } else if (vn_args_is(&a, "--help", "-h")) {
-      fputs(usage, stdout);
-      return -1;
-    } else if (vn_args_is(&a, "--version", NULL)) {
-      printf("vernier %s\n", VERNIER_VERSION);
+    } else if (vn_args_help_or_version(&a, usage)) {
       return -1;
     } else if (vn_args_is(&a, "--json", NULL)) {
       if (!vn_args_flag(&a)) {

@@ -128,12 +128,7 @@ int vn_list_main(int argc, char **argv) {
                word, word);
       return VN_EXIT_USAGE;
     }
-    if (vn_args_is(&a, "--help", "-h")) {
-      fputs(usage, stdout);
-      return VN_EXIT_OK;
-    }
-    if (vn_args_is(&a, "--version", NULL)) {
-      printf("vernier %s\n", VERNIER_VERSION);
+    if (vn_args_help_or_version(&a, usage)) {
       return VN_EXIT_OK;
     }
     if (!vn_args_is(&a, "--json", NULL)) {

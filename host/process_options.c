@@ -126,11 +126,7 @@ int vn_process_parse(VnProcessOptions *opt, int argc, char **argv) {
         opt->step_words[opt->n_step_words++] = word;
       }
       ++n_positional;
-    } else if (vn_args_is(&a, "--help", "-h")) {
-      fputs(usage, stdout);
-      return -1;
-    } else if (vn_args_is(&a, "--version", NULL)) {
-      printf("vernier %s\n", VERNIER_VERSION);
+    } else if (vn_args_help_or_version(&a, usage)) {
       return -1;
     } else {
       const int rc = parse_option(opt, &a, word);
