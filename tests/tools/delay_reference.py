@@ -25,7 +25,7 @@ import sys
 
 import numpy as np
 
-from wavtools import arg, band, read, write
+from wavtools import arg, band, read, same_shifted, write
 
 
 
@@ -85,14 +85,7 @@ def main():
         print("%.2f dB" % db)
         sys.exit(0 if db < arg("--below", -60.0) else 1)
     elif cmd == "same-shifted":
-        (_, a), (_, b) = read(rest[0]), read(rest[1])
-        n = int(rest[2])
-        a, b = a[n:], b[:len(a) - n]
-        ok = a.dtype == b.dtype and a.shape == b.shape
-        ok = ok and a.tobytes() == b.tobytes()
-        if not ok and a.shape == b.shape:
-            print("differ: at most %g" % np.max(np.abs(a - b)))
-        sys.exit(0 if ok else 1)
+        same_shifted(rest[0], rest[1], int(rest[2]))
     elif cmd == "speed":
         # Common practice: dry air, c = 331.3 sqrt(1 + T / 273.15) m/s.
         c = 331.3 * np.sqrt(1.0 + float(rest[0]) / 273.15)

@@ -33,3 +33,16 @@ def write(path, rate, data):
 def band(freqs, lo, hi):
     """The bins of freqs from lo to hi, inclusive."""
     return (freqs >= lo) & (freqs <= hi)
+
+
+def same_shifted(path_a, path_b, frames):
+    """Exit 0 when B is A delayed by `frames`, bit for bit: A's frames
+    `frames` onwards against B's first frames (lv2apply does not compensate
+    latency, so its output is ours shifted by the plugin's latency)."""
+    (_, a), (_, b) = read(path_a), read(path_b)
+    a, b = a[frames:], b[:len(a) - frames]
+    ok = a.dtype == b.dtype and a.shape == b.shape
+    ok = ok and a.tobytes() == b.tobytes()
+    if not ok and a.shape == b.shape:
+        print("differ: at most %g" % np.max(np.abs(a - b)))
+    sys.exit(0 if ok else 1)
