@@ -18,8 +18,10 @@
 #include "time_value.h"
 #include "vernier.h"
 
-#define PASS1_MAX_SEGMENTS 512u
-#define PASS2_MAX_SEGMENTS 2048u
+// At 48 kHz (8192-point segments): 44 s of material for the coarse lag,
+// 87 s (at 50% overlap) for the rest; shorter files are read whole.
+#define PASS1_MAX_SEGMENTS 256u
+#define PASS2_MAX_SEGMENTS 1024u
 // Enough for the jackknife (at least this many groups) and for a
 // coherence estimate worth the name.
 #define MIN_SEGMENTS 8u
