@@ -64,10 +64,30 @@ static double coherence_at(const VnTotals *t, uint32_t k) {
   return g2 < COHERENCE_MAX ? g2 : COHERENCE_MAX;
 }
 
+// A bin 90 dB below the band's strongest, in either file, holds nothing
+// but rounding (a float file low-passed in a DAW is empty up top), and the
+// coherence of rounding can be anything: such bins get no weight.
+#define EMPTY_BIN 1e-9
+
+typedef struct {
+  double r, x;
+} Floors;
+
+static Floors floors_for(const VnTotals *t, VnBins b) {
+  Floors f = {0, 0};
+  for (uint32_t k = b.lo; k <= b.hi; ++k) {
+    f.r = t->srr[k] > f.r ? t->srr[k] : f.r;
+    f.x = t->sxx[k] > f.x ? t->sxx[k] : f.x;
+  }
+  f.r *= EMPTY_BIN;
+  f.x *= EMPTY_BIN;
+  return f;
+}
+
 // psi(k) S(k) = g2 / (1 - g2) exp(j arg S(k)).
-static double complex weighted(const VnTotals *t, uint32_t k) {
+static double complex weighted(const VnTotals *t, uint32_t k, Floors f) {
   const double mag = cabs(t->srx[k]);
-  if (!(mag > 0.0)) {
+  if (!(mag > 0.0) || t->srr[k] < f.r || t->sxx[k] < f.x) {
     return 0.0;
   }
   const double g2 = coherence_at(t, k);
@@ -90,8 +110,9 @@ bool vn_fit_coarse(const VnTotals *t, VnBins b, int64_t max_lag, VnCoarse *c) {
     return false;
   }
   memset(spec, 0, n * sizeof *spec);
+  const Floors f = floors_for(t, b);
   for (uint32_t k = b.lo; k <= b.hi; ++k) {
-    spec[k] = weighted(t, k);
+    spec[k] = weighted(t, k, f);
   }
   // Only positive frequencies: g is the analytic correlation, and |g| its
   // envelope, whose peak does not move with polarity or a rotation.
@@ -176,8 +197,9 @@ void vn_fit_fine(const VnTotals *t, VnBins b, double centre, double radius,
     *theta_deg = 0.0;
     return;
   }
+  const Floors f = floors_for(t, b);
   for (uint32_t k = b.lo; k <= b.hi; ++k) {
-    w[k - b.lo] = weighted(t, k);
+    w[k - b.lo] = weighted(t, k, f);
     s[k - b.lo] = t->srx[k];
   }
   // A grid a quarter frame apart finds the main lobe (it is wider than a

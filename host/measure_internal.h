@@ -23,9 +23,10 @@ typedef struct {
   int channel; // 0-based, or VN_MEASURE_CHANNEL_MIX
   int channels;
   uint64_t frames;
-  float *chunk; // interleaved, in.max_frames frames
-  uint64_t pos; // the frame the next sequential read returns
-  bool count;   // count clipping and the peak while true
+  float *chunk;        // interleaved, in.max_frames frames
+  uint64_t pos;        // the frame the next sequential read returns
+  bool count;          // count clipping and the peak while true
+  uint64_t counted_to; // frames before this are in clipped and peak
   uint64_t clipped;
   double peak;
 } VnMonoReader;
@@ -35,6 +36,8 @@ int vn_mono_open(VnMonoReader *m, const char *path, int channel);
 // n mono frames from frame start into dst; past the end, zeros. Seeks when
 // start is not where the last read ended. Exit 3 on a read error.
 int vn_mono_read_at(VnMonoReader *m, uint64_t start, double *dst, size_t n);
+// Reads on to frame end (or the file's end) for the counts only.
+int vn_mono_scan_to(VnMonoReader *m, uint64_t end);
 void vn_mono_close(VnMonoReader *m);
 
 // ------------------------------------------------------------- spectra ----

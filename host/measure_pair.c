@@ -18,9 +18,11 @@
 #include "time_value.h"
 #include "vernier.h"
 
-// At 48 kHz (8192-point segments): 44 s of material for the coarse lag,
-// 87 s (at 50% overlap) for the rest; shorter files are read whole.
-#define PASS1_MAX_SEGMENTS 256u
+// At 48 kHz (8192-point segments, 50% overlap): 87 s of material each;
+// shorter files are used whole. Pass 1 also reads what lies between its
+// segments (without transforming it), so that the clipping count and the
+// silence check see every frame of both files.
+#define PASS1_MAX_SEGMENTS 512u
 #define PASS2_MAX_SEGMENTS 1024u
 // Enough for the jackknife (at least this many groups) and for a
 // coherence estimate worth the name.
@@ -61,26 +63,46 @@ static uint32_t fft_size(int64_t max_lag, double rate_hz) {
 }
 
 // Reads the segments of one pass into s: REF from ref_start, TARGET from
-// target_start, common frames of both, at least hop apart.
+// target_start, common frames of both, at least hop apart. scan: also
+// every frame between and after them (pass 1, which starts at 0).
 static int run_pass(Pair *p, VnSpectra *s, uint64_t ref_start,
                     uint64_t target_start, uint64_t common, uint32_t hop,
-                    uint32_t max_segments) {
+                    uint32_t max_segments, bool scan) {
   const uint32_t n = p->n_fft;
   uint64_t n_seg = common >= n ? (common - n) / hop + 1 : 0;
   n_seg = n_seg < max_segments ? n_seg : max_segments;
   const double spacing =
       n_seg > 1 ? (double)(common - n) / (double)(n_seg - 1) : 0.0;
   int shown = -1;
+  uint64_t last = 0;
   for (uint64_t i = 0; i < n_seg; ++i) {
     const int sig = vn_interrupt_pending();
     if (sig) {
       return VN_EXIT_SIGNAL_BASE + sig;
     }
     const uint64_t at = (uint64_t)floor((double)i * spacing);
-    int rc = vn_mono_read_at(&p->ref, ref_start + at, s->seg_r, n);
-    if (rc == VN_EXIT_OK) {
-      rc = vn_mono_read_at(&p->target, target_start + at, s->seg_x, n);
+    int rc = VN_EXIT_OK;
+    if (scan && p->ref.pos < ref_start + at) {
+      rc = vn_mono_scan_to(&p->ref, ref_start + at);
     }
+    if (rc == VN_EXIT_OK && scan && p->target.pos < target_start + at) {
+      rc = vn_mono_scan_to(&p->target, target_start + at);
+    }
+    // Overlapping the last segment: keep what it shares, read the rest.
+    const uint64_t keep = i > 0 && at - last < n ? n - (at - last) : 0;
+    if (keep) {
+      memmove(s->seg_r, s->seg_r + (n - keep), keep * sizeof *s->seg_r);
+      memmove(s->seg_x, s->seg_x + (n - keep), keep * sizeof *s->seg_x);
+    }
+    if (rc == VN_EXIT_OK) {
+      rc = vn_mono_read_at(&p->ref, ref_start + at + keep, s->seg_r + keep,
+                           n - keep);
+    }
+    if (rc == VN_EXIT_OK) {
+      rc = vn_mono_read_at(&p->target, target_start + at + keep,
+                           s->seg_x + keep, n - keep);
+    }
+    last = at;
     if (rc != VN_EXIT_OK) {
       return rc;
     }
@@ -91,6 +113,10 @@ static int run_pass(Pair *p, VnSpectra *s, uint64_t ref_start,
       vn_progress_show(percent);
       shown = percent;
     }
+  }
+  if (scan) {
+    const int rc = vn_mono_scan_to(&p->ref, UINT64_MAX);
+    return rc == VN_EXIT_OK ? vn_mono_scan_to(&p->target, UINT64_MAX) : rc;
   }
   return VN_EXIT_OK;
 }
@@ -275,13 +301,19 @@ static void figures(Pair *p, VnBins low, double d, VnMeasureResult *r) {
   }
 }
 
+// The coherence over the band, each bin weighted by the pair's power
+// there: a bass pair is coherent where the bass is, and the empty bins
+// above it should not make it read as unrelated. Unrelated files still
+// give about 1 / K.
 static double mean_coherence(const VnTotals *t, VnBins b) {
-  double sum = 0;
+  double sum = 0, weight = 0;
   for (uint32_t k = b.lo; k <= b.hi; ++k) {
     const double den = t->srr[k] * t->sxx[k];
-    sum += den > 0 ? creal(t->srx[k] * conj(t->srx[k])) / den : 0.0;
+    const double power = t->srr[k] + t->sxx[k];
+    sum += den > 0 ? power * creal(t->srx[k] * conj(t->srx[k])) / den : 0.0;
+    weight += power;
   }
-  return sum / (b.hi - b.lo + 1);
+  return weight > 0 ? sum / weight : 0.0;
 }
 
 static int measure(Pair *p, VnMeasureResult *r) {
@@ -291,16 +323,17 @@ static int measure(Pair *p, VnMeasureResult *r) {
       r->ref_frames < r->target_frames ? r->ref_frames : r->target_frames;
   // Pass 2 will have |lag| fewer frames in common at most.
   const uint64_t common2 = common1 - (uint64_t)p->max_lag;
-  p->total_segments = segments_for(common1, n, n, PASS1_MAX_SEGMENTS) +
+  p->total_segments = segments_for(common1, n, n / 2, PASS1_MAX_SEGMENTS) +
                       segments_for(common2, n, n / 2, PASS2_MAX_SEGMENTS);
   if (vn_spectra_init(&p->pass1, n, 1) != 0 || !vn_totals_init(&p->t1, n) ||
       !vn_totals_init(&p->t2, n) || !vn_totals_init(&p->jack, n)) {
     vn_error("out of memory for %u-point spectra", n);
     return VN_EXIT_PROCESSING;
   }
-  // Pass 1: as recorded, segments side by side, not overlapping.
+  // Pass 1: as recorded, and every frame of both files counted.
   p->ref.count = p->target.count = true;
-  int rc = run_pass(p, &p->pass1, 0, 0, common1, n, PASS1_MAX_SEGMENTS);
+  int rc =
+      run_pass(p, &p->pass1, 0, 0, common1, n / 2, PASS1_MAX_SEGMENTS, true);
   p->ref.count = p->target.count = false;
   if (rc != VN_EXIT_OK) {
     return rc;
@@ -337,7 +370,7 @@ static int measure(Pair *p, VnMeasureResult *r) {
     return VN_EXIT_PROCESSING;
   }
   rc = run_pass(p, &p->pass2, ref_start, target_start, common, n / 2,
-                PASS2_MAX_SEGMENTS);
+                PASS2_MAX_SEGMENTS, false);
   vn_progress_clear();
   if (rc != VN_EXIT_OK) {
     return rc;

@@ -20,7 +20,11 @@ int vn_mono_open(VnMonoReader *m, const char *path, int channel) {
   }
   m->channels = m->in.info.channels;
   m->frames = (uint64_t)m->in.info.frames;
-  if (channel != VN_MEASURE_CHANNEL_MIX && channel >= m->channels) {
+  // --channel picks among the channels of a multi-channel file; a mono
+  // file has just the one.
+  if (m->channels == 1) {
+    m->channel = VN_MEASURE_CHANNEL_MIX;
+  } else if (channel != VN_MEASURE_CHANNEL_MIX && channel >= m->channels) {
     vn_error("%s: --channel %d, but the file has %d channel%s", path,
              channel + 1, m->channels, m->channels == 1 ? "" : "s");
     return VN_EXIT_INPUT;
@@ -33,34 +37,66 @@ int vn_mono_open(VnMonoReader *m, const char *path, int channel) {
   return VN_EXIT_OK;
 }
 
-static void to_mono(VnMonoReader *m, size_t n, double *dst) {
-  const int channels = m->channels;
-  const float *src = m->chunk;
-  for (size_t i = 0; i < n; ++i) {
-    double v;
-    if (channels == 1) {
-      v = src[i];
-    } else if (m->channel != VN_MEASURE_CHANNEL_MIX) {
-      v = src[i * (size_t)channels + (size_t)m->channel];
-    } else {
-      double sum = 0;
-      for (int ch = 0; ch < channels; ++ch) {
-        sum += src[i * (size_t)channels + (size_t)ch];
-      }
-      v = sum / channels;
-    }
-    // NaN in a float file would poison every sum it reaches.
-    dst[i] = isfinite(v) ? v : 0.0;
+// Clipping and the peak, over frames not counted before (segments overlap,
+// and a frame read twice counts once).
+static void count_levels(VnMonoReader *m, const float *src, size_t n) {
+  const uint64_t first = m->pos;
+  if (!m->count || first + n <= m->counted_to) {
+    return;
   }
-  if (m->count) {
-    for (size_t i = 0; i < n * (size_t)channels; ++i) {
-      const double a = fabs((double)src[i]);
-      if (a >= CLIP_LEVEL) {
-        ++m->clipped;
+  const size_t skip =
+      m->counted_to > first ? (size_t)(m->counted_to - first) : 0;
+  const size_t channels = (size_t)m->channels;
+  // On the bit patterns: for floats of one sign the order of the patterns
+  // as integers is the order of the values, and integer loops vectorise
+  // where a float max (with its NaN rules) does not. NaN counts as
+  // infinity: clipped, and never silence.
+  uint32_t clip_bits, peak_bits;
+  const float clip = (float)CLIP_LEVEL, peak_now = (float)m->peak;
+  memcpy(&clip_bits, &clip, sizeof clip_bits);
+  memcpy(&peak_bits, &peak_now, sizeof peak_bits);
+  uint32_t clipped = 0;
+  for (size_t i = skip * channels; i < n * channels; ++i) {
+    uint32_t b;
+    memcpy(&b, &src[i], sizeof b);
+    b &= 0x7fffffffu;
+    b = b < 0x7f800000u ? b : 0x7f800000u;
+    clipped += b >= clip_bits;
+    peak_bits = b > peak_bits ? b : peak_bits;
+  }
+  float peak;
+  memcpy(&peak, &peak_bits, sizeof peak);
+  m->clipped += clipped;
+  m->peak = peak;
+  m->counted_to = first + n;
+}
+
+// NaN or infinity in a float file would poison every sum it reaches: it
+// reads as 0. (v - v is 0 only for finite v; the test vectorises where
+// isfinite() does not.)
+static inline double finite_or_zero(double v) {
+  return v - v == 0.0 ? v : 0.0;
+}
+
+static void to_mono(VnMonoReader *m, size_t n, double *restrict dst) {
+  const size_t channels = (size_t)m->channels;
+  const float *restrict src = m->chunk;
+  if (channels == 1) {
+    for (size_t i = 0; i < n; ++i) {
+      dst[i] = finite_or_zero(src[i]);
+    }
+  } else if (m->channel != VN_MEASURE_CHANNEL_MIX) {
+    const size_t ch = (size_t)m->channel;
+    for (size_t i = 0; i < n; ++i) {
+      dst[i] = finite_or_zero(src[i * channels + ch]);
+    }
+  } else {
+    for (size_t i = 0; i < n; ++i) {
+      double sum = 0;
+      for (size_t ch = 0; ch < channels; ++ch) {
+        sum += src[i * channels + ch];
       }
-      if (a > m->peak && isfinite(a)) {
-        m->peak = a;
-      }
+      dst[i] = finite_or_zero(sum / (double)channels);
     }
   }
 }
@@ -86,11 +122,35 @@ int vn_mono_read_at(VnMonoReader *m, uint64_t start, double *dst, size_t n) {
       m->frames = m->pos;
       break;
     }
+    count_levels(m, m->chunk, (size_t)got);
     to_mono(m, (size_t)got, dst + done);
     done += (size_t)got;
     m->pos += (uint64_t)got;
   }
   memset(dst + done, 0, (n - done) * sizeof *dst);
+  return VN_EXIT_OK;
+}
+
+int vn_mono_scan_to(VnMonoReader *m, uint64_t end) {
+  end = end < m->frames ? end : m->frames;
+  while (m->pos < end) {
+    const uint64_t left = end - m->pos;
+    // libsndfile's own conversion, faster than vn_input_read()'s and the
+    // same values when reading (both scale by 2^(bits-1)); for the counts
+    // the last bit would not matter anyway.
+    const sf_count_t got = sf_readf_float(
+        m->in.sf, m->chunk,
+        (sf_count_t)(left < m->in.max_frames ? left : m->in.max_frames));
+    if (got < 0) {
+      return VN_EXIT_INPUT;
+    }
+    if (got == 0) {
+      m->frames = m->pos;
+      break;
+    }
+    count_levels(m, m->chunk, (size_t)got);
+    m->pos += (uint64_t)got;
+  }
   return VN_EXIT_OK;
 }
 

@@ -26,6 +26,10 @@
 // among fits within TIE of the best, the one with the fewest stages wins.
 #define MIN_GAIN 0.01
 #define TIE 0.005
+// ... and when what the sum gains (the cross term) grows by this share:
+// an all-pass is a plugin more in the path and a phase response to hear,
+// worth it for a real change, not for a tenth of a decibel.
+#define MIN_SUM_GAIN 0.05
 
 typedef struct {
   const double complex *w;  // g2(k) exp(j phi(k)), bins lo .. hi
@@ -280,7 +284,7 @@ void vn_fit_shape(const VnTotals *t, VnBins b, double rate_hz, int64_t max_lag,
       const double q = order == 2 ? exp(p[1]) : 0.707;
       const double d = order == 2 ? p[2] : p[1];
       model_sums(&pr, exp(p[0]), q, d, &sum, &power);
-      if (cabs(power) < (1.0 + MIN_GAIN) * cabs(base_power)) {
+      if (cabs(power) < (1.0 + MIN_SUM_GAIN) * cabs(base_power)) {
         goto done; // agrees better, sums no better: not worth a plugin
       }
       shape->fitted = true;
