@@ -93,10 +93,26 @@ void vn_time_units_help(VnText *t, const VnTimeContext *ctx) {
                  ctx->rate_hz, ctx->air_temp_c);
 }
 
+// Only where the control is a pure delay of the whole output: then moving
+// the file by whole frames commutes with everything else the plugin does
+// (the Align Strip's polarity, rotation, all-pass and gain are all
+// time-invariant), so host and plugin together give exactly the time asked.
 bool vn_time_host_can_shift(const char *plugin_uri, const char *symbol) {
-  return (strcmp(plugin_uri, "urn:vernier:delay-mono") == 0 ||
-          strcmp(plugin_uri, "urn:vernier:delay-stereo") == 0) &&
-         strcmp(symbol, "delay") == 0;
+  static const char *const pure_delays[] = {
+      "urn:vernier:delay-mono",
+      "urn:vernier:delay-stereo",
+      "urn:vernier:strip-mono",
+      "urn:vernier:strip-stereo",
+  };
+  if (strcmp(symbol, "delay") != 0) {
+    return false;
+  }
+  for (size_t i = 0; i < sizeof pure_delays / sizeof pure_delays[0]; ++i) {
+    if (strcmp(plugin_uri, pure_delays[i]) == 0) {
+      return true;
+    }
+  }
+  return false;
 }
 
 bool vn_time_split(double ms, float lo_ms, float hi_ms, double rate_hz,

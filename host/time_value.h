@@ -14,10 +14,10 @@
 // c = 331.3 sqrt(1 + T / 273.15) m/s, 343.2 m/s at 20 C, so 1 m is
 // 2.9136 ms. Published tables differ from it by about 0.1%.
 //
-// Beyond the Fine Delay's own range (-20 .. +100 ms), `vernier process`
-// moves the file itself by whole frames, up to VN_HOST_SHIFT_MAX_S either
-// way, and gives the plugin the rest: offline it can read ahead as far as it
-// likes, where a plugin's look-ahead is latency.
+// Beyond the range (-20 .. +100 ms) of the Fine Delay's delay, and of the
+// Align Strip's, `vernier process` moves the file itself by whole frames, up to
+// VN_HOST_SHIFT_MAX_S either way, and gives the plugin the rest: offline it can
+// read ahead as far as it likes, where a plugin's look-ahead is latency.
 #ifndef VERNIER_HOST_TIME_VALUE_H
 #define VERNIER_HOST_TIME_VALUE_H
 
@@ -55,7 +55,8 @@ bool vn_time_parse_ms(const char *text, const VnTimeContext *ctx, double *ms);
 // at 48000 Hz), m, cm, mm, ft, in (of air at 20 C)".
 void vn_time_units_help(VnText *t, const VnTimeContext *ctx);
 
-// The Fine Delay's delay control: the host may shift beyond its range.
+// The delay control of the Fine Delay and of the Align Strip (both
+// variants): the host may shift beyond its range.
 bool vn_time_host_can_shift(const char *plugin_uri, const char *symbol);
 
 // ms lies outside lo_ms .. hi_ms: *host_frames is the whole frames beyond

@@ -93,8 +93,8 @@ static void out_of_range(const VnStep *step, const VnSetting *set,
   vn_text_free(&range);
 }
 
-// A control in milliseconds: NUMBER[UNIT]. Beyond the Fine Delay's range
-// the host takes the whole frames (time_value.h says why and how far).
+// A control in milliseconds: NUMBER[UNIT]. Beyond the range of the Fine
+// Delay's or the Align Strip's delay the host takes the whole frames (time_value.h says why and how far).
 static int parse_time(const VnStep *step, const VnPortInfo *port,
                       const VnSetting *set, const VnTimeContext *ctx,
                       float *value, int64_t *host_frames) {
