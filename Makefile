@@ -28,7 +28,8 @@ WARN     := -Wall -Wextra -Wshadow -Wstrict-prototypes \
 STD      := -std=gnu11
 # GCC's -O2 vectoriser (cost model very-cheap) does not add the run-time
 # overlap check that in-place-safe loops need; this lets it, and the plain
-# gain and polarity loops then run at memcpy speed.
+# gain and polarity loops then run at memcpy speed. The host gets it too
+# (measure's level scan and the sample conversions are such loops).
 DSP_OPT  := -fvect-cost-model=dynamic
 SAN      := -fsanitize=address,undefined -fno-omit-frame-pointer \
             -fno-sanitize-recover=undefined
@@ -74,7 +75,7 @@ $(3)/%.ttl: ttl/%.ttl | $(3)
 
 $(2)/vernier: $(HOST_SRC) $(wildcard host/*.h plugins/dsp/*.h) $(DSP_SRC)
 	@mkdir -p $$(@D)
-	$$(CC) $$($(1)_CFLAGS) $$(HOST_CFLAGS) -DVERNIER_VERSION='"$(VERSION)"' \
+	$$(CC) $$($(1)_CFLAGS) $(DSP_OPT) $$(HOST_CFLAGS) -DVERNIER_VERSION='"$(VERSION)"' \
 	  -o $$@ $(HOST_SRC) $(DSP_SRC) $$($(1)_LDFLAGS) $$(HOST_LIBS)
 
 $(3):

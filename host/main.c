@@ -4,6 +4,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "measure.h"
 #include "vernier.h"
 
 typedef struct {
@@ -16,6 +17,8 @@ typedef struct {
 static const Command commands[] = {
     {"process", vn_process_main,
      "run an audio file through a chain of LV2 plugins"},
+    {"measure", vn_measure_main,
+     "measure offset, polarity and phase between recordings of one source"},
     {"list", vn_list_main, "list installed LV2 plugins, ours first"},
     {"describe", vn_describe_main,
      "one plugin's ports, ranges, latency and presets"},
