@@ -137,10 +137,14 @@ $(BUILD)/bench/raw_copy: tests/bench/raw_copy.c
 	@mkdir -p $(@D)
 	$(CC) $(PLAIN_CFLAGS) $(HOST_CFLAGS) -o $@ $< $(HOST_LIBS)
 
+$(BUILD)/bench/raw_read: tests/bench/raw_read.c
+	@mkdir -p $(@D)
+	$(CC) $(PLAIN_CFLAGS) $(HOST_CFLAGS) -o $@ $< $(HOST_LIBS)
+
 bench: deps
 	+$(MAKE) --no-print-directory bench-run
 
-bench-run: all $(BUILD)/bench/bench_dsp $(BUILD)/bench/raw_copy
+bench-run: all $(BUILD)/bench/bench_dsp $(BUILD)/bench/raw_copy $(BUILD)/bench/raw_read
 	BUILD=$(BUILD) sh tests/bench/bench.sh
 
 # -------------------------------------------------------------- install ----

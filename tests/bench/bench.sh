@@ -5,7 +5,11 @@
 #      buffers (build/bench/bench_dsp);
 #   2. host: `vernier process IN OUT gain gain=0.7` on a 10-minute stereo
 #      48 kHz float32 WAV of noise beside a raw libsndfile copy of the same
-#      file (build/bench/raw_copy).
+#      file (build/bench/raw_copy);
+#   3. measure: `vernier measure -q --json REF TARGET` on a 10-minute mono
+#      48 kHz 24-bit pair beside reading both files with libsndfile
+#      (build/bench/raw_read), and its peak memory on 10 minutes against
+#      1 minute.
 # Timings are for reading, never asserted: the script fails only when a tool
 # it needs crashes or is missing, not when something is slow.
 #
@@ -16,9 +20,11 @@ set -u
 BUILD=${BUILD:-build}
 BUILD=$(cd "$BUILD" && pwd) || exit 1
 PY=/usr/bin/python3 # Debian's python3, with numpy; the first on PATH may lack it
+SRCDIR=$(cd "$(dirname "$0")/../.." && pwd)
 B=$BUILD/bench
 BENCH_DSP=$B/bench_dsp
 RAW_COPY=$B/raw_copy
+RAW_READ=$B/raw_read
 VERNIER=$BUILD/vernier
 RUNS=${VERNIER_BENCH_RUNS:-5}
 MINUTES=${VERNIER_BENCH_MINUTES:-10}
@@ -36,17 +42,23 @@ TIMES_RAW=$B/times-raw.txt
 TIMES_SYNC=$B/times-sync.txt
 TIMES_HOST=$B/times-vernier.txt
 HOST_ERR=$B/vernier-stderr.txt
+M_REF=$B/measure-${MINUTES}min-ref-48k-pcm24.wav
+M_TGT=$B/measure-${MINUTES}min-target-48k-pcm24.wav
+M_REF1=$B/measure-1min-ref.wav
+M_TGT1=$B/measure-1min-target.wav
+TIMES_READ=$B/times-read.txt
+TIMES_MEASURE=$B/times-measure.txt
 
 cleanup() {
   rm -f "$OUT_RAW" "$OUT_HOST" "$PROBE" "$PROBE_OUT" "$PORTS" "$TIMES_RAW" "$TIMES_SYNC" \
-    "$TIMES_HOST" "$HOST_ERR"
-  [ "${VERNIER_BENCH_KEEP:-0}" = 1 ] || rm -f "$IN"
+    "$TIMES_HOST" "$HOST_ERR" "$M_REF1" "$M_TGT1" "$TIMES_READ" "$TIMES_MEASURE"
+  [ "${VERNIER_BENCH_KEEP:-0}" = 1 ] || rm -f "$IN" "$M_REF" "$M_TGT"
 }
 trap cleanup EXIT
 trap 'exit 130' INT
 trap 'exit 143' TERM
 
-for tool in "$BENCH_DSP" "$RAW_COPY"; do
+for tool in "$BENCH_DSP" "$RAW_COPY" "$RAW_READ"; do
   if [ ! -x "$tool" ]; then
     echo "bench: $tool is missing; run 'make bench'" >&2
     exit 1
@@ -95,7 +107,7 @@ echo "Vernier speed table, $(date -u '+%Y-%m-%d %H:%M UTC')"
 echo "machine: $(uname -sm), ${cpu:-cpu unknown}, $(getconf _NPROCESSORS_ONLN) cores," \
   "load average $(cut -d ' ' -f 1-3 /proc/loadavg 2>/dev/null)"
 echo "targets: gain and polarity DSP within 2x memcpy; vernier process gain" \
-  "within 1.25x a raw copy"
+  "within 1.25x a raw copy; vernier measure within 3x reading both files"
 echo
 
 # ------------------------------------------------------------------ DSP ----
@@ -250,3 +262,102 @@ echo "  the CPU and memory, not the disk, except where a run flushes to disk:"
 echo "  vernier fsyncs its output before renaming it into place (so a crash never"
 echo "  leaves a renamed but empty file), and baseline 2 does the same."
 echo "  Outputs are deleted after each run."
+
+# -------------------------------------------------------------- measure ----
+# The pair: white noise at -12 dBFS RMS, TARGET 123 frames late with its own
+# noise 20 dB down, 24-bit PCM as recordings are (tests/tools/measure_scene.py
+# long, in slices: the generator's memory stays small too).
+echo
+m_bytes=$((44 + frames * 3))
+echo "Measure: a ${MINUTES}-minute mono 48 kHz 24-bit pair of noise" \
+  "($((2 * m_bytes / 1000000)) MB), TARGET 123 frames late"
+SCENE=$SRCDIR/tests/tools/measure_scene.py
+if [ -f "$M_REF" ] && [ "$(size_of "$M_REF")" = "$m_bytes" ] &&
+  [ -f "$M_TGT" ] && [ "$(size_of "$M_TGT")" = "$m_bytes" ]; then
+  echo "(reusing $M_REF and $M_TGT)"
+elif ! "$PY" "$SCENE" long "$M_REF" "$M_TGT" --seconds "$seconds" --offset 123; then
+  echo "  skipped: cannot generate the pair ($PY with numpy is needed)"
+  exit 0
+fi
+
+# Usable? The answer on the long pair itself, once (which also puts both
+# files in the page cache for the timed runs).
+m_ok=0
+"$RAW_READ" "$M_REF" "$M_TGT" >/dev/null || exit 1
+rc=0
+[ -x "$VERNIER" ] &&
+  { "$VERNIER" measure -q --json "$M_REF" "$M_TGT" >"$HOST_ERR.json" 2>"$HOST_ERR" || rc=$?; }
+if [ ! -x "$VERNIER" ]; then
+  why="$VERNIER is missing"
+elif [ "$rc" -ne 0 ]; then
+  why="exit $rc: $(head -n 1 "$HOST_ERR")"
+elif ! "$PY" -c '
+import json, sys
+t = json.load(open(sys.argv[1]))["targets"][0]
+sys.exit(0 if t["status"] == "found" and abs(t["offset"]["frames"] - 123) < 0.05 else 1)' \
+  "$HOST_ERR.json"; then
+  why="it did not find the 123 frames: $(head -c 200 "$HOST_ERR.json")"
+else
+  m_ok=1
+fi
+rm -f "$HOST_ERR.json"
+
+: >"$TIMES_READ"
+: >"$TIMES_MEASURE"
+i=1
+while [ "$i" -le "$RUNS" ]; do
+  "$BENCH_DSP" --time "$RAW_READ" "$M_REF" "$M_TGT" >>"$TIMES_READ" 2>/dev/null || exit 1
+  if [ "$m_ok" = 1 ]; then
+    t=$("$BENCH_DSP" --time "$VERNIER" measure -q --json "$M_REF" "$M_TGT" 2>/dev/null)
+    rc=$?
+    if [ "$rc" -ne 0 ]; then
+      m_ok=0
+      why="exit $rc on a timed run"
+    else
+      echo "$t" >>"$TIMES_MEASURE"
+    fi
+  fi
+  i=$((i + 1))
+done
+
+printf '%-42s %8s %8s %11s %7s %7s  %s\n' "command" "median" "median" \
+  "x realtime" "wall" "cpu" "target"
+awk -v w="$(median "$TIMES_READ" 1)" -v c="$(median "$TIMES_READ" 2)" -v s="$seconds" 'BEGIN {
+  printf "%-42s %8.3f %8.3f %10.0fx %6.2fx %6.2fx  %s\n",
+    "raw_read REF TARGET (libsndfile, 64k frames)", w, c, s / w, 1, 1, "(baseline)" }'
+if [ "$m_ok" = 1 ]; then
+  paste -d ' ' "$TIMES_MEASURE" "$TIMES_READ" |
+    awk '{ print $1 / $3, $2 / $4 }' >"$TIMES_MEASURE.ratio"
+  awk -v w="$(median "$TIMES_MEASURE" 1)" -v c="$(median "$TIMES_MEASURE" 2)" \
+    -v rw="$(median "$TIMES_MEASURE.ratio" 1)" \
+    -v rc="$(median "$TIMES_MEASURE.ratio" 2)" -v s="$seconds" 'BEGIN {
+    printf "%-42s %8.3f %8.3f %10.0fx %6.2fx %6.2fx  <= 3x: %s\n",
+      "vernier measure -q --json REF TARGET", w, c, s / w, rw, rc,
+      (rw <= 3 ? "met" : "MISSED") }'
+  rm -f "$TIMES_MEASURE.ratio"
+else
+  printf '%-42s %s\n' "vernier measure -q --json REF TARGET" "not usable yet, not timed ($why)"
+fi
+
+# Peak memory (maximum resident set, GNU time's %M, in KiB): bounded means
+# ten times the material does not take ten times the memory.
+if [ "$m_ok" = 1 ] && [ -x /usr/bin/time ]; then
+  "$PY" "$SCENE" long "$M_REF1" "$M_TGT1" --seconds 60 --offset 123 || exit 1
+  rss() {
+    /usr/bin/time -f %M -o "$HOST_ERR" "$VERNIER" measure -q --json "$1" "$2" \
+      >/dev/null 2>&1 && tail -n 1 "$HOST_ERR"
+  }
+  rss1=$(rss "$M_REF1" "$M_TGT1")
+  rss10=$(rss "$M_REF" "$M_TGT")
+  awk -v a="$rss1" -v b="$rss10" -v m="$MINUTES" 'BEGIN {
+    printf "peak RSS of measure: 1 min %.1f MB, %d min %.1f MB (%.2fx for %dx the frames)\n",
+      a / 1024, m, b / 1024, b / a, m }'
+elif [ "$m_ok" = 1 ]; then
+  echo "peak RSS of measure: not measured (/usr/bin/time is missing)"
+fi
+echo "x realtime: seconds of audio (one file) per second of wall time; vs raw:"
+echo "  median over the runs of measure / raw_read, each pair run back to back,"
+echo "  $RUNS timed runs of each after one untimed run of both, so both files"
+echo "  are read from the page cache. measure reads at most 512 + 2048 segments"
+echo "  of each file (host/measure_pair.c), not every frame: beyond a few"
+echo "  minutes its time and memory stop growing with the length."
