@@ -5,6 +5,8 @@
 #include <math.h>
 #include <stdlib.h>
 
+#include "text.h"
+
 void vn_json_init(VnJson *j, FILE *out) {
   *j = (VnJson){.out = out};
 }
@@ -28,32 +30,6 @@ static void before_value(VnJson *j) {
     j->has_items[j->depth] = true;
     newline_indent(j);
   }
-}
-
-// The byte length of the valid UTF-8 sequence at p, or 0 when it is not one
-// (overlong, surrogate, beyond U+10FFFF, or cut short).
-static int utf8_sequence_length(const unsigned char *p) {
-  int length;
-  uint32_t code, least;
-  if (p[0] >= 0xC2 && p[0] <= 0xDF) {
-    length = 2, code = p[0] & 0x1Fu, least = 0x80;
-  } else if (p[0] >= 0xE0 && p[0] <= 0xEF) {
-    length = 3, code = p[0] & 0x0Fu, least = 0x800;
-  } else if (p[0] >= 0xF0 && p[0] <= 0xF4) {
-    length = 4, code = p[0] & 0x07u, least = 0x10000;
-  } else {
-    return 0;
-  }
-  for (int i = 1; i < length; ++i) {
-    if ((p[i] & 0xC0) != 0x80) {
-      return 0;
-    }
-    code = (code << 6) | (p[i] & 0x3Fu);
-  }
-  if (code < least || code > 0x10FFFF || (code >= 0xD800 && code <= 0xDFFF)) {
-    return 0;
-  }
-  return length;
 }
 
 static void write_string(FILE *out, const char *s) {
@@ -90,7 +66,7 @@ static void write_string(FILE *out, const char *s) {
       fputc(c, out);
       ++p;
     } else {
-      const int length = utf8_sequence_length(p);
+      const int length = vn_utf8_sequence_length(p);
       if (length == 0) {
         fputs("\\ufffd", out); // a stray byte of a Latin-1 file name, say
         ++p;

@@ -180,4 +180,11 @@ typedef struct {
 } VnMeasureCorrection;
 VnMeasureCorrection vn_measure_correction(const VnMeasureResult *r);
 
+// An angle in degrees, into -180 .. 180 (180 itself stays).
+double vn_wrap180(double deg);
+// theta (TARGET from REF) to the plugins' correction: invert when |theta|
+// > 90, and the rotator's angle for the rest.
+void vn_measure_correction_rule(double theta_deg, bool *invert,
+                                double *angle_deg);
+
 #endif

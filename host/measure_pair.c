@@ -241,12 +241,6 @@ int vn_measure_pair(const VnMeasureOptions *opt, const char *target_path,
   return rc;
 }
 
-static double wrap180(double deg) {
-  deg = fmod(deg, 360.0);
-  deg = deg > 180.0 ? deg - 360.0 : deg;
-  return deg <= -180.0 ? deg + 360.0 : deg;
-}
-
 // The jackknife (Efron and Stein 1981; Quenouille): refit with one group
 // of segments left out at a time; the spread of those fits, times
 // (G - 1) / G, estimates the variance of the fit on all of them.
@@ -258,7 +252,7 @@ static void jackknife(Pair *p, VnBins band, double d, double theta,
     vn_totals_sum(&p->jack, &p->pass2, (int)i);
     double di = d, ti = theta;
     vn_fit_fine(&p->jack, band, d, 1.0, &di, &ti);
-    const double dt = wrap180(ti - theta);
+    const double dt = vn_wrap180(ti - theta);
     sum_d += di - d;
     sum_dd += (di - d) * (di - d);
     sum_t += dt;
@@ -384,10 +378,9 @@ static int measure(Pair *p, VnMeasureResult *r) {
   const double radius = coarse.lobe_frames < 256 ? coarse.lobe_frames : 256;
   vn_fit_fine(&p->t2, band, 0.0, radius > 2 ? radius : 2, &d, &theta);
   r->offset_frames = (double)lag + d;
-  r->theta_deg = wrap180(theta);
+  r->theta_deg = vn_wrap180(theta);
   jackknife(p, band, d, theta, r);
-  r->invert = fabs(r->theta_deg) > 90.0;
-  r->angle_deg = wrap180(-r->theta_deg + (r->invert ? 180.0 : 0.0));
+  vn_measure_correction_rule(r->theta_deg, &r->invert, &r->angle_deg);
 
   if (coarse.outside_lag != 0 || coarse.at_edge) {
     r->status = VN_NOT_FOUND_AT_EDGE;

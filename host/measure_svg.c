@@ -5,6 +5,8 @@
 #include <stdarg.h>
 #include <string.h>
 
+#include "text.h"
+
 #define TICK_FONT "font-size=\"11\" fill=\"#333\""
 #define LABEL_FONT "font-size=\"12\" fill=\"#222\""
 #define GRID_STYLE "stroke=\"#d9d9d9\" stroke-width=\"0.7\""
@@ -24,31 +26,6 @@ void vn_svg_printf(VnSvg *s, const char *fmt, ...) {
   va_end(ap);
 }
 
-// The length of the valid UTF-8 sequence at p, 0 when it is not one.
-static int utf8_length(const unsigned char *p) {
-  int length;
-  unsigned code, least;
-  if (p[0] >= 0xC2 && p[0] <= 0xDF) {
-    length = 2, code = p[0] & 0x1Fu, least = 0x80;
-  } else if (p[0] >= 0xE0 && p[0] <= 0xEF) {
-    length = 3, code = p[0] & 0x0Fu, least = 0x800;
-  } else if (p[0] >= 0xF0 && p[0] <= 0xF4) {
-    length = 4, code = p[0] & 0x07u, least = 0x10000;
-  } else {
-    return 0;
-  }
-  for (int i = 1; i < length; ++i) {
-    if ((p[i] & 0xC0) != 0x80) {
-      return 0;
-    }
-    code = (code << 6) | (p[i] & 0x3Fu);
-  }
-  if (code < least || code > 0x10FFFF || (code >= 0xD800 && code <= 0xDFFF)) {
-    return 0;
-  }
-  return length;
-}
-
 void vn_svg_escaped(VnSvg *s, const char *text) {
   for (const unsigned char *p = (const unsigned char *)text; *p;) {
     const unsigned char c = *p;
@@ -65,7 +42,7 @@ void vn_svg_escaped(VnSvg *s, const char *text) {
       // XML 1.0 allows no control characters but tab and newlines.
     } else if (c < 0x80) {
       vn_svg_printf(s, "%c", c);
-    } else if ((length = utf8_length(p)) > 0) {
+    } else if ((length = vn_utf8_sequence_length(p)) > 0) {
       vn_svg_printf(s, "%.*s", length, (const char *)p);
     } else {
       vn_svg_printf(s, "\xEF\xBF\xBD");

@@ -10,19 +10,23 @@
 #include "measure_write.h"
 #include "vernier.h"
 
-static double wrap180(double deg) {
+double vn_wrap180(double deg) {
   const double a = fmod(deg, 360.0);
-  return a > 180.0 ? a - 360.0 : a < -180.0 ? a + 360.0 : a;
+  return a > 180.0 ? a - 360.0 : a <= -180.0 ? a + 360.0 : a;
+}
+
+void vn_measure_correction_rule(double theta_deg, bool *invert,
+                                double *angle_deg) {
+  // Invert when that leaves less than a quarter turn for the rotator.
+  const double theta = vn_wrap180(theta_deg);
+  *invert = fabs(theta) > 90.0;
+  *angle_deg = vn_wrap180(-theta + (*invert ? 180.0 : 0.0));
 }
 
 VnMeasureCorrection vn_measure_correction(const VnMeasureResult *r) {
   VnMeasureCorrection c;
   if (r->shape.fitted) {
-    // The same rule as the constant-angle fit's: invert when that leaves
-    // less than a quarter turn for the rotator.
-    const double theta = wrap180(r->shape.theta_deg);
-    c.invert = fabs(theta) > 90.0;
-    c.angle_deg = wrap180(-theta + (c.invert ? 180.0 : 0.0));
+    vn_measure_correction_rule(r->shape.theta_deg, &c.invert, &c.angle_deg);
     c.delay_frames = -r->shape.offset_frames;
   } else {
     c.invert = r->invert;
@@ -52,7 +56,7 @@ void vn_step_correction(const VnMeasureResult *r, VnStepCorrection *c) {
   c->stereo = r->target_channels == 2;
   c->invert = k.invert;
   format_fixed(c->delay_smp, sizeof c->delay_smp, k.delay_frames, 4);
-  format_fixed(c->angle_deg, sizeof c->angle_deg, wrap180(k.angle_deg), 3);
+  format_fixed(c->angle_deg, sizeof c->angle_deg, vn_wrap180(k.angle_deg), 3);
   c->allpass = r->shape.fitted;
   if (c->allpass) {
     // Held to the controls' ranges, so that the words are always accepted.

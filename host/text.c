@@ -2,6 +2,7 @@
 #include "text.h"
 
 #include <stdarg.h>
+#include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -104,4 +105,30 @@ void vn_table_free(VnTable *t) {
   }
   free(t->cells);
   memset(t, 0, sizeof *t);
+}
+
+// The byte length of the valid UTF-8 sequence at p, or 0 when it is not one
+// (overlong, surrogate, beyond U+10FFFF, or cut short).
+int vn_utf8_sequence_length(const unsigned char *p) {
+  int length;
+  uint32_t code, least;
+  if (p[0] >= 0xC2 && p[0] <= 0xDF) {
+    length = 2, code = p[0] & 0x1Fu, least = 0x80;
+  } else if (p[0] >= 0xE0 && p[0] <= 0xEF) {
+    length = 3, code = p[0] & 0x0Fu, least = 0x800;
+  } else if (p[0] >= 0xF0 && p[0] <= 0xF4) {
+    length = 4, code = p[0] & 0x07u, least = 0x10000;
+  } else {
+    return 0;
+  }
+  for (int i = 1; i < length; ++i) {
+    if ((p[i] & 0xC0) != 0x80) {
+      return 0;
+    }
+    code = (code << 6) | (p[i] & 0x3Fu);
+  }
+  if (code < least || code > 0x10FFFF || (code >= 0xD800 && code <= 0xDFFF)) {
+    return 0;
+  }
+  return length;
 }

@@ -39,4 +39,9 @@ bool vn_table_add(VnTable *t, const char *const *cells);
 void vn_table_print(const VnTable *t, FILE *out, const char *indent);
 void vn_table_free(VnTable *t);
 
+// The byte length of the valid UTF-8 sequence at p, or 0 when it is not one
+// (overlong, surrogate, beyond U+10FFFF, or cut short): for writers whose
+// output must be valid UTF-8 (JSON, SVG) when file names need not be.
+int vn_utf8_sequence_length(const unsigned char *p);
+
 #endif
