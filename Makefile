@@ -123,8 +123,10 @@ check-run: all $(ASAN_BUNDLE) $(BUILD)/asan/vernier $(UNIT_TESTS) $(TEST_BUNDLES
 demo: deps
 	+$(MAKE) --no-print-directory demo-run
 
+# The host finds the bundle beside itself too, but LV2_PATH makes sure it
+# is the one just built, not one installed on the machine.
 demo-run: all
-	LV2_PATH=$(abspath $(BUILD)/lv2) sh tests/demo.sh $(BUILD)
+	LV2_PATH=$(abspath $(BUILD)/lv2) $(BUILD)/vernier demo $(BUILD)/demo
 
 # ---------------------------------------------------------------- bench ----
 $(BUILD)/bench/bench_dsp: tests/bench/bench_dsp.c $(wildcard tests/bench/*.h) \

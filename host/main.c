@@ -22,6 +22,7 @@ static const Command commands[] = {
     {"list", vn_list_main, "list installed LV2 plugins, ours first"},
     {"describe", vn_describe_main,
      "one plugin's ports, ranges, latency and presets"},
+    {"demo", vn_demo_main, "make up a two-path bass recording and measure it"},
 };
 
 #define N_COMMANDS (sizeof commands / sizeof commands[0])

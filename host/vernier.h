@@ -37,5 +37,6 @@ void vn_progress_clear(void);
 int vn_process_main(int argc, char **argv);
 int vn_list_main(int argc, char **argv);
 int vn_describe_main(int argc, char **argv);
+int vn_demo_main(int argc, char **argv);
 
 #endif
