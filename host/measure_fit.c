@@ -306,3 +306,35 @@ void vn_fit_figures(const VnTotals *t, const VnCorrection *c, VnBins low,
   f->low_db = 0.0;
   f->full_db = 0.0;
 }
+
+static void set_db(VnSumFigures *f, double low, double full, double low0,
+                   double full0) {
+  f->low_db = low > 0 && low0 > 0 ? 10.0 * log10(low / low0) : -300.0;
+  f->full_db = full > 0 && full0 > 0 ? 10.0 * log10(full / full0) : -300.0;
+}
+
+void vn_fit_all_figures(const VnTotals *t1, const VnTotals *t2, VnBins low,
+                        double d, VnMeasureResult *r) {
+  double low0, full0, lo, full;
+  vn_fit_figures(t1, NULL, low, &r->as_recorded, &low0, &full0);
+  const VnCorrection flip = {.theta_deg = r->invert ? 180.0 : 0.0,
+                             .rate_hz = r->rate_hz};
+  vn_fit_figures(t1, &flip, low, &r->polarity_only, &lo, &full);
+  set_db(&r->polarity_only, lo, full, low0, full0);
+  const VnCorrection moved = {.offset_frames = d, .rate_hz = r->rate_hz};
+  vn_fit_figures(t2, &moved, low, &r->offset_only, &lo, &full);
+  set_db(&r->offset_only, lo, full, low0, full0);
+  const VnCorrection all = {
+      .offset_frames = d, .theta_deg = r->theta_deg, .rate_hz = r->rate_hz};
+  vn_fit_figures(t2, &all, low, &r->corrected, &lo, &full);
+  set_db(&r->corrected, lo, full, low0, full0);
+  if (r->shape.fitted) {
+    const VnCorrection shaped = {.offset_frames = r->shape.offset_frames -
+                                                  (double)r->coarse_frames,
+                                 .theta_deg = r->shape.theta_deg,
+                                 .shape = &r->shape,
+                                 .rate_hz = r->rate_hz};
+    vn_fit_figures(t2, &shaped, low, &r->shaped, &lo, &full);
+    set_db(&r->shaped, lo, full, low0, full0);
+  }
+}

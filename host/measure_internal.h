@@ -121,6 +121,11 @@ double complex vn_allpass_response(const VnShapeFit *s, double w,
 void vn_fit_figures(const VnTotals *t, const VnCorrection *c, VnBins low,
                     VnSumFigures *f, double *low_power, double *full_power);
 
+// Every state of r's figures: t1 the pass as recorded, t2 the pass moved
+// by r->coarse_frames, d the fraction left after it.
+void vn_fit_all_figures(const VnTotals *t1, const VnTotals *t2, VnBins low,
+                        double d, VnMeasureResult *r);
+
 // --shape: fits r->shape from the aligned totals.
 void vn_fit_shape(const VnTotals *t, VnBins b, double rate_hz, int64_t max_lag,
                   double offset_frames, VnShapeFit *shape);

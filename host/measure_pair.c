@@ -264,37 +264,6 @@ static void jackknife(Pair *p, VnBins band, double d, double theta,
   r->theta_sigma_deg = sqrt((g - 1.0) * (var_t > 0 ? var_t : 0));
 }
 
-static void set_db(VnSumFigures *f, double low, double full, double low0,
-                   double full0) {
-  f->low_db = low > 0 && low0 > 0 ? 10.0 * log10(low / low0) : -300.0;
-  f->full_db = full > 0 && full0 > 0 ? 10.0 * log10(full / full0) : -300.0;
-}
-
-static void figures(Pair *p, VnBins low, double d, VnMeasureResult *r) {
-  double low0, full0, lo, full;
-  vn_fit_figures(&p->t1, NULL, low, &r->as_recorded, &low0, &full0);
-  const VnCorrection flip = {.theta_deg = r->invert ? 180.0 : 0.0,
-                             .rate_hz = r->rate_hz};
-  vn_fit_figures(&p->t1, &flip, low, &r->polarity_only, &lo, &full);
-  set_db(&r->polarity_only, lo, full, low0, full0);
-  const VnCorrection moved = {.offset_frames = d, .rate_hz = r->rate_hz};
-  vn_fit_figures(&p->t2, &moved, low, &r->offset_only, &lo, &full);
-  set_db(&r->offset_only, lo, full, low0, full0);
-  const VnCorrection all = {
-      .offset_frames = d, .theta_deg = r->theta_deg, .rate_hz = r->rate_hz};
-  vn_fit_figures(&p->t2, &all, low, &r->corrected, &lo, &full);
-  set_db(&r->corrected, lo, full, low0, full0);
-  if (r->shape.fitted) {
-    const VnCorrection shaped = {.offset_frames = r->shape.offset_frames -
-                                                  (double)r->coarse_frames,
-                                 .theta_deg = r->shape.theta_deg,
-                                 .shape = &r->shape,
-                                 .rate_hz = r->rate_hz};
-    vn_fit_figures(&p->t2, &shaped, low, &r->shaped, &lo, &full);
-    set_db(&r->shaped, lo, full, low0, full0);
-  }
-}
-
 // The coherence over the band, each bin weighted by the pair's power
 // there: a bass pair is coherent where the bass is, and the empty bins
 // above it should not make it read as unrelated. Unrelated files still
@@ -395,7 +364,7 @@ static int measure(Pair *p, VnMeasureResult *r) {
       r->shape.offset_frames += (double)lag;
     }
   }
-  figures(p, low, d, r);
+  vn_fit_all_figures(&p->t1, &p->t2, low, d, r);
   const VnCorrection best = {
       .offset_frames =
           r->shape.fitted ? r->shape.offset_frames - (double)lag : d,
