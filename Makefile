@@ -50,8 +50,11 @@ PLUGIN_SRC  := plugins/bundle.c $(wildcard plugins/*/[a-z]*.c)
 PLUGIN_SRC  := $(filter-out $(DSP_SRC),$(PLUGIN_SRC)) $(DSP_SRC)
 HOST_SRC    := $(wildcard host/*.c)
 TTL         := $(filter-out ttl/manifest.ttl.in,$(wildcard ttl/*.ttl))
+# clang and libclang-rt-14-dev: libFuzzer for the fuzz targets; valgrind:
+# the memcheck pass over the tests.
 DEBIAN_PACKAGES := build-essential pkg-config lv2-dev liblilv-dev lilv-utils sordi \
-                   libsndfile1-dev libfftw3-dev libcmocka-dev python3-scipy
+                   libsndfile1-dev libfftw3-dev libcmocka-dev python3-scipy \
+                   clang libclang-rt-14-dev valgrind
 
 # A build variant: $(1) name, $(2) folder of the host, $(3) folder of the
 # bundle, $(4) extra flags. LV2_PATH entries are folders of bundles, and lilv
