@@ -13,7 +13,7 @@ typedef struct {
   const char *summary;
 } Command;
 
-// A new sub-command (measure, demo) is one line here and one entry point.
+// A new sub-command is one line here and one entry point.
 static const Command commands[] = {
     {"process", vn_process_main,
      "run an audio file through a chain of LV2 plugins"},
@@ -39,7 +39,8 @@ static void usage(FILE *out) {
   fputs("\n"
         "'vernier SUB-COMMAND --help' shows its options. Plugins are\n"
         "looked for on LV2_PATH. Exit status: 0 success, 2 usage, 3 input,\n"
-        "4 output, 5 plugin, 6 processing, 130/143 interrupted.\n",
+        "4 output, 5 plugin, 6 processing, 7 no reliable offset found\n"
+        "(measure), 130/143 interrupted.\n",
         out);
 }
 
