@@ -116,6 +116,19 @@ $(BUILD)/test-bundles/%.lv2: tests/bundles/%.lv2 $(wildcard tests/bundles/*/*)
 	if [ -f $</$*.c ]; then $(CC) $(PLAIN_CFLAGS) $(LV2_CFLAGS) -fPIC -shared \
 	  -o $@/$*.so $</$*.c -lm; fi
 
+# Real-time safety host (tests/rt, run by tests/rt/rt.sh): the plugin sources
+# linked with a shim that counts malloc, mutex and system calls inside run().
+# Plain gcc at -O1 -g, never ASan, which intercepts malloc itself.
+RT_HOST := $(BUILD)/rt/rt_host
+$(RT_HOST): $(wildcard tests/rt/*.c tests/rt/*.h) tests/unit/descriptor.h \
+  $(PLUGIN_SRC) $(wildcard plugins/*.h plugins/dsp/*.h)
+	@mkdir -p $(@D)
+	$(CC) -O1 -g $(STD) $(WARN) $(PLUGIN_CFLAGS) \
+	  $(shell $(PKG_CONFIG) --cflags lilv-0) -Iplugins -Itests/unit -o $@ \
+	  $(wildcard tests/rt/*.c) $(PLUGIN_SRC) $(LDFLAGS) \
+	  $(shell $(PKG_CONFIG) --libs lilv-0) $(PLUGIN_LIBS) -ldl
+check-run: $(RT_HOST)
+
 check: deps
 	+$(MAKE) --no-print-directory check-run
 

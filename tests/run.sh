@@ -1,8 +1,8 @@
 #!/bin/sh
 # SPDX-License-Identifier: GPL-3.0-or-later
 # Runs every test: the cmocka unit tests given as arguments, then each shell
-# suite in tests/host and tests/outside. Ends with one line of totals and
-# exits non-zero when anything failed.
+# suite in tests/host, tests/outside and tests/rt. Ends with one line of
+# totals and exits non-zero when anything failed.
 set -u
 BUILD=${BUILD:-build}
 export BUILD
@@ -35,7 +35,7 @@ for t in "$@"; do
   rm -f "$log"
 done
 
-for s in tests/host/*.sh tests/outside/*.sh; do
+for s in tests/host/*.sh tests/outside/*.sh tests/rt/*.sh; do
   [ -f "$s" ] || continue
   echo "== $(basename "$(dirname "$s")"): $(basename "$s" .sh)"
   sh "$s" || echo "fail $s: the suite itself exited non-zero" >>"$VERNIER_TEST_RESULTS"

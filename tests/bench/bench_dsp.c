@@ -54,10 +54,12 @@ static const bench_case_t cases[] = {
     {"urn:vernier:polarity-mono", "invert=1", 0},
     {"urn:vernier:polarity-mono", "", 0},
     {"urn:vernier:polarity-mono", "invert=1", MOVING},
+    {"urn:vernier:polarity-mono", "invert=1", DENORMAL_INPUT},
     {"urn:vernier:polarity-stereo", "invert_left=1 invert_right=1", 0},
     {"urn:vernier:polarity-stereo", "", 0},
     {"urn:vernier:rotate-mono", "angle=37", 0},
     {"urn:vernier:rotate-stereo", "angle=37", 0},
+    {"urn:vernier:rotate-mono", "angle=37", DENORMAL_INPUT},
     {"urn:vernier:allpass-mono", "frequency=300 q=0.7 stages=1", 0},
     {"urn:vernier:allpass-mono", "frequency=300 q=0.7 stages=4", 0},
     {"urn:vernier:allpass-mono", "frequency=300 q=0.7 stages=1 order=1", 0},
@@ -75,6 +77,9 @@ static const bench_case_t cases[] = {
     {"urn:vernier:delay-stereo", "delay=-7.89", MOVING | MOVING_HAS_TARGET},
     {"urn:vernier:strip-mono",
      "invert=1 delay=1.2345 angle=37 frequency=300 stages=2 gain=0.8", 0},
+    {"urn:vernier:strip-mono",
+     "invert=1 delay=1.2345 angle=37 frequency=300 stages=2 gain=0.8",
+     DENORMAL_INPUT},
 };
 
 typedef struct {
