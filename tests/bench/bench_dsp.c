@@ -513,7 +513,10 @@ int main(int argc, char **argv) {
     }
     if (strcmp(d->URI, "urn:vernier:gain-mono") == 0) {
       // 100x slower: a tenth of the stream is plenty
-      bench_bare_gain(frames / 10 / BLOCK_FRAMES * BLOCK_FRAMES, repeats);
+      // A tenth of the stream, whole blocks, at least one (--seconds 0.1
+      // would otherwise leave none).
+      const uint32_t bare = frames / 10 / BLOCK_FRAMES * BLOCK_FRAMES;
+      bench_bare_gain(bare ? bare : BLOCK_FRAMES, repeats);
     }
   }
   printf(
