@@ -36,15 +36,29 @@ int vn_input_open(VnInput *in, const char *path, size_t block_frames) {
   in->path = path;
   struct stat st;
   int fd = -1;
-  if (stat(path, &st) != 0 || (fd = open(path, O_RDONLY)) < 0) {
+  if (stat(path, &st) != 0) {
     vn_error("%s: cannot open the input (%s)", path, strerror(errno));
     return VN_EXIT_INPUT;
   }
-  close(fd);
   if (S_ISDIR(st.st_mode)) {
     vn_error("%s: is a folder, not an audio file", path);
     return VN_EXIT_INPUT;
   }
+  // Before open(): opening a FIFO with no writer blocks for ever, and the
+  // SIGINT/SIGTERM handler's SA_RESTART resumes the wait. Reading seeks
+  // (measure reads where the segments are), so pipes and devices are out
+  // anyway.
+  if (!S_ISREG(st.st_mode)) {
+    vn_error("%s: is not a regular file (a FIFO, device or socket); give an "
+             "audio file",
+             path);
+    return VN_EXIT_INPUT;
+  }
+  if ((fd = open(path, O_RDONLY)) < 0) {
+    vn_error("%s: cannot open the input (%s)", path, strerror(errno));
+    return VN_EXIT_INPUT;
+  }
+  close(fd);
   in->sf = sf_open(path, SFM_READ, &in->info);
   if (!in->sf) {
     vn_error("%s: not an audio file libsndfile can read (%s)", path,
@@ -150,6 +164,14 @@ int vn_output_check(const char *out_path, const char *in_path, bool overwrite) {
     }
     if (S_ISDIR(out_st.st_mode)) {
       vn_error("%s is a folder; OUT must be a file name", out_path);
+      return VN_EXIT_OUTPUT;
+    }
+    // The output is renamed into place: --overwrite would put a regular
+    // file where a device or FIFO was (as root, /dev/null itself).
+    if (!S_ISREG(out_st.st_mode)) {
+      vn_error("%s is not a regular file (a FIFO, device or socket); OUT "
+               "must be a file name",
+               out_path);
       return VN_EXIT_OUTPUT;
     }
     if (!overwrite) {
