@@ -362,3 +362,24 @@ echo "  are read from the page cache. measure reads every frame once (for the"
 echo "  clipping count) but transforms at most 512 + 1024 segments of each file"
 echo "  (host/measure_pair.c): beyond a minute or two only the reading grows"
 echo "  with the length, and the memory not at all."
+
+# ---- 4 GiB+ (issue 6, tests/host/hostile_big.sh): peak RSS on a sparse
+# RF64 of 537919488 stereo float frames (4.3 GB, ~17 MB on disk) against
+# its first 65536 frames; `measure` reads all of TARGET.
+if [ -x /usr/bin/time ] && [ "$(df -Pk "$B" | awk 'NR == 2 { print $4 }')" -gt 6291456 ]; then
+  HW="$SRCDIR/tests/tools/hostile_wav.py"
+  BIG=$B/big-sparse.rf64
+  "$PY" "$HW" big "$BIG" 537919488 && "$PY" "$HW" head "$BIG" "$B/big-head.wav" 65536 || exit 1
+  rss_big() {
+    /usr/bin/time -f %M -o "$HOST_ERR" "$VERNIER" measure -q --json "$B/big-head.wav" "$1" \
+      >/dev/null 2>&1 && tail -n 1 "$HOST_ERR"
+  }
+  a=$(rss_big "$B/big-head.wav")
+  b=$(rss_big "$BIG")
+  awk -v a="$a" -v b="$b" 'BEGIN {
+    printf "peak RSS of measure: TARGET 1.4 s %.1f MB, 4.3 GB RF64 %.1f MB (%.2fx for 8208x the frames)\n",
+      a / 1024, b / 1024, b / a }'
+  rm -f "$BIG" "$B/big-head.wav"
+else
+  echo "peak RSS of measure on 4.3 GB: not measured (/usr/bin/time missing or under 6 GB free)"
+fi
