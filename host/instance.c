@@ -4,6 +4,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include <lv2/atom/atom.h>
 
@@ -12,6 +13,28 @@
 
 // Larger reports are taken as a plugin's mistake: this is ~6 hours at 48 kHz.
 #define VN_MAX_LATENCY_FRAMES (1u << 30)
+
+// Why lilv_plugin_instantiate() gave nothing, as far as the host can tell:
+// no lv2:binary, a binary that is not there, or (lilv's own message above
+// says which) one that does not load, has no lv2_descriptor, or refused.
+static void instantiate_failed(const VnPluginInfo *info, double rate_hz) {
+  const LilvNode *binary = lilv_plugin_get_library_uri(info->plugin);
+  char *path =
+      binary ? lilv_file_uri_parse(lilv_node_as_uri(binary), NULL) : NULL;
+  if (!binary) {
+    vn_error("%s cannot be instantiated: its description names no library "
+             "(lv2:binary)",
+             info->uri);
+  } else if (path && access(path, F_OK) != 0) {
+    vn_error("%s cannot be instantiated: its library %s is missing", info->uri,
+             path);
+  } else {
+    vn_error("%s cannot be instantiated at %g Hz (the plugin refused, or its "
+             "library did not load)",
+             info->uri, rate_hz);
+  }
+  lilv_free(path);
+}
 
 static int check_ports(const VnPluginInfo *info) {
   for (uint32_t i = 0; i < info->n_ports; ++i) {
@@ -94,9 +117,7 @@ int vn_instance_open(VnInstance *inst, VnWorld *w, const VnPluginInfo *info,
   }
   inst->lilv = lilv_plugin_instantiate(info->plugin, rate_hz, features);
   if (!inst->lilv) {
-    vn_error("%s cannot be instantiated at %g Hz (the plugin refused, or its "
-             "library did not load)",
-             info->uri, rate_hz);
+    instantiate_failed(info, rate_hz);
     return VN_EXIT_PLUGIN;
   }
   for (uint32_t i = 0; i < info->n_ports; ++i) {

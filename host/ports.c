@@ -5,6 +5,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include <lv2/core/lv2.h>
 #include <lv2/units/units.h>
 
 #include "vernier.h"
@@ -61,6 +62,30 @@ static bool has(const LilvPlugin *p, const LilvPort *port, VnWorld *w,
   return lilv_port_has_property(p, port, w->node[id]);
 }
 
+// lilv 0.24 aborts on an assertion when a port's scale points give it none
+// it can use: each needs an rdf:value and an rdfs:label (found by
+// tests/fuzz/fuzz_preset.c). Then the port gets no scale points instead.
+static bool scale_points_complete(VnWorld *w, const LilvPlugin *p,
+                                  const LilvPort *port) {
+  LilvNode *scale_point = lilv_new_uri(w->lilv, LV2_CORE__scalePoint);
+  LilvNode *value = lilv_new_uri(w->lilv, LILV_NS_RDF "value");
+  LilvNode *label = lilv_new_uri(w->lilv, LILV_NS_RDFS "label");
+  LilvNodes *points =
+      scale_point ? lilv_port_get_value(p, port, scale_point) : NULL;
+  bool ok = value && label;
+  LILV_FOREACH(nodes, i, points) {
+    const LilvNode *point = lilv_nodes_get(points, i);
+    ok = ok && !lilv_node_is_literal(point) &&
+         lilv_world_ask(w->lilv, point, value, NULL) &&
+         lilv_world_ask(w->lilv, point, label, NULL);
+  }
+  lilv_nodes_free(points);
+  lilv_node_free(label);
+  lilv_node_free(value);
+  lilv_node_free(scale_point);
+  return ok;
+}
+
 static bool load_port(VnPortInfo *pi, VnWorld *w, const LilvPlugin *p,
                       const LilvPort *port) {
   pi->symbol = lilv_node_as_string(lilv_port_get_symbol(p, port));
@@ -110,7 +135,9 @@ static bool load_port(VnPortInfo *pi, VnWorld *w, const LilvPlugin *p,
   }
   lilv_node_free(size);
 
-  LilvScalePoints *points = lilv_port_get_scale_points(p, port);
+  LilvScalePoints *points = scale_points_complete(w, p, port)
+                                ? lilv_port_get_scale_points(p, port)
+                                : NULL;
   if (points && lilv_scale_points_size(points) > 0) {
     pi->points = calloc(lilv_scale_points_size(points), sizeof *pi->points);
     if (!pi->points) {
@@ -132,11 +159,45 @@ static bool load_port(VnPortInfo *pi, VnWorld *w, const LilvPlugin *p,
   return pi->name != NULL;
 }
 
+// lilv reads a plugin's data when first asked and, after a Turtle error or
+// a port index missing or given twice, prints its message and keeps what it
+// could parse: part of the ports, or none. Such a plugin is refused here, so
+// that it is neither described nor run as something its author did not mean
+// (tests/host/broken_bundles.sh).
+static bool description_is_sound(VnWorld *w, const LilvPlugin *p,
+                                 const char *uri) {
+  if (!lilv_plugin_verify(p)) {
+    LilvNode *port = lilv_new_uri(w->lilv, LV2_CORE__port);
+    LilvNodes *ports = port ? lilv_plugin_get_value(p, port) : NULL;
+    if (port && !ports) {
+      vn_error("%s: its description names no port (lv2:port)", uri);
+    } else {
+      vn_error("%s: its description is not valid LV2 (a Turtle syntax "
+               "error, or no rdf:type or doap:name; lilv's message above "
+               "says which)",
+               uri);
+    }
+    lilv_nodes_free(ports);
+    lilv_node_free(port);
+    return false;
+  }
+  if (lilv_plugin_get_num_ports(p) == 0) { // it has lv2:port: verify saw one
+    vn_error("%s: its ports cannot be read (an lv2:index missing or given "
+             "twice; lilv's message above says which)",
+             uri);
+    return false;
+  }
+  return true;
+}
+
 bool vn_plugin_info_load(VnPluginInfo *info, VnWorld *w, const LilvPlugin *p) {
   memset(info, 0, sizeof *info);
   info->plugin = p;
   info->uri = lilv_node_as_uri(lilv_plugin_get_uri(p));
   info->latency_port = -1;
+  if (!description_is_sound(w, p, info->uri)) {
+    return false;
+  }
   info->n_ports = lilv_plugin_get_num_ports(p);
   const size_t n = info->n_ports ? info->n_ports : 1;
   info->ports = calloc(n, sizeof *info->ports);
