@@ -116,6 +116,18 @@ $(BUILD)/test-bundles/%.lv2: tests/bundles/%.lv2 $(wildcard tests/bundles/*/*)
 	if [ -f $</$*.c ]; then $(CC) $(PLAIN_CFLAGS) $(LV2_CFLAGS) -fPIC -shared \
 	  -o $@/$*.so $</$*.c -lm; fi
 
+# Broken bundles (tests/bundles/broken/<case>.lv2): built the same way, into
+# their own folder, which only tests/host/broken_bundles.sh puts on LV2_PATH
+# (on every suite's path they would put lilv's complaints on every stderr).
+BROKEN_BUNDLES := $(patsubst tests/bundles/broken/%,$(BUILD)/broken-bundles/%,\
+                    $(wildcard tests/bundles/broken/*.lv2))
+$(BUILD)/broken-bundles/%.lv2: tests/bundles/broken/%.lv2 $(wildcard tests/bundles/broken/*/* tests/bundles/broken/*.h)
+	@rm -rf $@ && mkdir -p $@
+	cp $</*.ttl $@/ 2>/dev/null || true
+	if [ -f $</$*.c ]; then $(CC) $(PLAIN_CFLAGS) $(LV2_CFLAGS) -fPIC -shared \
+	  -o $@/$*.so $</$*.c -lm; fi
+check-run: $(BROKEN_BUNDLES)
+
 # Real-time safety host (tests/rt, run by tests/rt/rt.sh): the plugin sources
 # linked with a shim that counts malloc, mutex and system calls inside run().
 # Plain gcc at -O1 -g, never ASan, which intercepts malloc itself.
@@ -128,6 +140,25 @@ $(RT_HOST): $(wildcard tests/rt/*.c tests/rt/*.h) tests/unit/descriptor.h \
 	  $(wildcard tests/rt/*.c) $(PLUGIN_SRC) $(LDFLAGS) \
 	  $(shell $(PKG_CONFIG) --libs lilv-0) $(PLUGIN_LIBS) -ldl
 check-run: $(RT_HOST)
+
+# `make check-valgrind`: the suite under valgrind memcheck (tests/valgrind.sh
+# says what it runs and why). The cmocka tests are built once more without
+# sanitizers (ASan and valgrind do not mix), at -O1 -g so that reports name
+# lines; the host is the plain build/vernier. check-valgrind-full runs every
+# shell suite, not only the subset.
+PLAIN_TESTS := $(patsubst tests/unit/%.c,$(BUILD)/plain-tests/%,$(wildcard tests/unit/test_*.c))
+
+$(BUILD)/plain-tests/%: tests/unit/%.c $(PLUGIN_SRC) $(wildcard tests/unit/*.h plugins/*.h plugins/dsp/*.h)
+	@mkdir -p $(@D)
+	$(CC) -O1 -g $(STD) $(WARN) $(PLUGIN_CFLAGS) $(CMOCKA_CFLAGS) -Iplugins -o $@ $< \
+	  $(PLUGIN_SRC) $(LDFLAGS) $(CMOCKA_LIBS) $(PLUGIN_LIBS)
+
+.PHONY: check-valgrind check-valgrind-full
+check-valgrind: all $(PLAIN_TESTS) $(TEST_BUNDLES) $(BROKEN_BUNDLES)
+	BUILD=$(BUILD) PYTHON=$(PYTHON) sh tests/valgrind.sh $(PLAIN_TESTS)
+
+check-valgrind-full: all $(PLAIN_TESTS) $(TEST_BUNDLES) $(BROKEN_BUNDLES)
+	BUILD=$(BUILD) PYTHON=$(PYTHON) VALGRIND_FULL=1 sh tests/valgrind.sh $(PLAIN_TESTS)
 
 check: deps
 	+$(MAKE) --no-print-directory check-run

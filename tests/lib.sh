@@ -26,6 +26,17 @@ VERNIER="$BUILD/asan/vernier"
 VERNIER_PLAIN="$BUILD/vernier"
 LV2_ASAN="$BUILD/asan/lv2:$BUILD/test-bundles"
 LV2_PLAIN="$BUILD/lv2:$BUILD/test-bundles"
+# VERNIER_VALGRIND=DIR (tests/valgrind.sh sets it): the plain host runs
+# under valgrind memcheck instead, through DIR/vernier, a wrapper that logs
+# each run to DIR/logs/; the runner counts the errors there, since not every
+# check looks at the exit code. VERNIER_PLAIN (the outside suites' host) goes
+# through it too. A plain host cannot load the sanitized bundle, so LV2_ASAN
+# points at the plain one.
+if [ -n "${VERNIER_VALGRIND:-}" ]; then
+  VERNIER="$VERNIER_VALGRIND/vernier"
+  VERNIER_PLAIN="$VERNIER"
+  LV2_ASAN="$LV2_PLAIN"
+fi
 export LV2_PATH="$LV2_ASAN"
 export ASAN_OPTIONS="${ASAN_OPTIONS:-detect_leaks=1:abort_on_error=0:exitcode=99}"
 export UBSAN_OPTIONS="${UBSAN_OPTIONS:-print_stacktrace=1:halt_on_error=1:exitcode=98}"

@@ -195,7 +195,7 @@ rm -f "$I/-dash.wav" "$I/-out.wav"
 
 # lilv 0.24 (and its lv2ls) crashes on a relative LV2_PATH entry; the host
 # hands lilv the same list made absolute.
-rel=$(realpath --relative-to="$PWD" "$BUILD/asan/lv2")
+rel=$(realpath --relative-to="$PWD" "${LV2_ASAN%%:*}")
 LV2_PATH="$rel" "$VERNIER" list >"$T/out" 2>"$T/err" </dev/null
 RC=$?
 expect_rc "a relative LV2_PATH works (list)" 0
