@@ -160,6 +160,29 @@ check-valgrind: all $(PLAIN_TESTS) $(TEST_BUNDLES) $(BROKEN_BUNDLES)
 check-valgrind-full: all $(PLAIN_TESTS) $(TEST_BUNDLES) $(BROKEN_BUNDLES)
 	BUILD=$(BUILD) PYTHON=$(PYTHON) VALGRIND_FULL=1 sh tests/valgrind.sh $(PLAIN_TESTS)
 
+# Fuzz targets (tests/fuzz/fuzz_*.c): libFuzzer with ASan and UBSan, which
+# only clang has. The host and DSP sources are compiled once into objects
+# under build/fuzz/obj and linked into each target (host/main.c left out:
+# libFuzzer brings its own main). tests/host/fuzz.sh runs them.
+FUZZ_CC      := clang
+# glibc defines C11's CMPLX for GCC only; clang has the same builtin.
+FUZZ_FLAGS   := -g -O1 $(STD) $(WARN) -fsanitize=fuzzer-no-link,address,undefined \
+                -fno-sanitize-recover=undefined -fno-omit-frame-pointer \
+                '-DCMPLX(x,y)=__builtin_complex((double)(x),(double)(y))'
+FUZZ_SRC     := $(filter-out host/main.c,$(HOST_SRC)) $(DSP_SRC)
+FUZZ_OBJ     := $(patsubst %.c,$(BUILD)/fuzz/obj/%.o,$(FUZZ_SRC))
+FUZZ_TARGETS := $(patsubst tests/fuzz/%.c,$(BUILD)/fuzz/%,$(wildcard tests/fuzz/fuzz_*.c))
+
+.SECONDARY: $(FUZZ_OBJ)
+$(BUILD)/fuzz/obj/%.o: %.c $(wildcard host/*.h plugins/*.h plugins/dsp/*.h)
+	@mkdir -p $(@D)
+	$(FUZZ_CC) $(FUZZ_FLAGS) $(HOST_CFLAGS) $(PLUGIN_CFLAGS) -c -o $@ $<
+
+$(BUILD)/fuzz/fuzz_%: tests/fuzz/fuzz_%.c $(wildcard tests/fuzz/*.h) $(FUZZ_OBJ)
+	$(FUZZ_CC) $(FUZZ_FLAGS) -fsanitize=fuzzer $(HOST_CFLAGS) -iquote host -iquote plugins \
+	  -o $@ $< $(FUZZ_OBJ) $(HOST_LIBS)
+check-run: $(FUZZ_TARGETS)
+
 check: deps
 	+$(MAKE) --no-print-directory check-run
 
