@@ -101,6 +101,26 @@ static void to_mono(VnMonoReader *m, size_t n, double *restrict dst) {
   }
 }
 
+// Up to want frames into m->chunk, counted, and m->pos moved past them;
+// 0 at the end (a header may claim more frames than the file holds: the
+// rest reads as silence), -1 on a read error. The segments go through
+// vn_input_read(), the host's own scaling; the frames read for the counts
+// alone through libsndfile's conversion, which is faster and gives the same
+// values when reading (both scale by 2^(bits-1)).
+static long read_chunk(VnMonoReader *m, size_t want, bool counts_only) {
+  want = want < m->in.max_frames ? want : m->in.max_frames;
+  const long got =
+      counts_only ? (long)sf_readf_float(m->in.sf, m->chunk, (sf_count_t)want)
+                  : vn_input_read(&m->in, m->chunk, want);
+  if (got == 0) {
+    m->frames = m->pos;
+  } else if (got > 0) {
+    count_levels(m, m->chunk, (size_t)got);
+    m->pos += (uint64_t)got;
+  }
+  return got;
+}
+
 int vn_mono_read_at(VnMonoReader *m, uint64_t start, double *dst, size_t n) {
   if (start != m->pos) {
     if (start < m->frames &&
@@ -113,19 +133,15 @@ int vn_mono_read_at(VnMonoReader *m, uint64_t start, double *dst, size_t n) {
   }
   size_t done = 0;
   while (done < n && m->pos < m->frames) {
-    const long got = vn_input_read(&m->in, m->chunk, n - done);
-    if (got < 0) {
-      return VN_EXIT_INPUT;
-    }
-    if (got == 0) {
-      // Fewer frames than the header claims: the rest reads as silence.
-      m->frames = m->pos;
+    const long got = read_chunk(m, n - done, false);
+    if (got <= 0) {
+      if (got < 0) {
+        return VN_EXIT_INPUT;
+      }
       break;
     }
-    count_levels(m, m->chunk, (size_t)got);
     to_mono(m, (size_t)got, dst + done);
     done += (size_t)got;
-    m->pos += (uint64_t)got;
   }
   memset(dst + done, 0, (n - done) * sizeof *dst);
   return VN_EXIT_OK;
@@ -135,21 +151,11 @@ int vn_mono_scan_to(VnMonoReader *m, uint64_t end) {
   end = end < m->frames ? end : m->frames;
   while (m->pos < end) {
     const uint64_t left = end - m->pos;
-    // libsndfile's own conversion, faster than vn_input_read()'s and the
-    // same values when reading (both scale by 2^(bits-1)); for the counts
-    // the last bit would not matter anyway.
-    const sf_count_t got = sf_readf_float(
-        m->in.sf, m->chunk,
-        (sf_count_t)(left < m->in.max_frames ? left : m->in.max_frames));
-    if (got < 0) {
-      return VN_EXIT_INPUT;
+    const long got = read_chunk(
+        m, left < m->in.max_frames ? (size_t)left : m->in.max_frames, true);
+    if (got <= 0) {
+      return got < 0 ? VN_EXIT_INPUT : VN_EXIT_OK;
     }
-    if (got == 0) {
-      m->frames = m->pos;
-      break;
-    }
-    count_levels(m, m->chunk, (size_t)got);
-    m->pos += (uint64_t)got;
   }
   return VN_EXIT_OK;
 }
