@@ -1,8 +1,9 @@
 #!/bin/sh
 # SPDX-License-Identifier: GPL-3.0-or-later
 # Runs every test: the cmocka unit tests given as arguments, then each shell
-# suite in tests/host, tests/outside and tests/rt. Ends with one line of
-# totals and exits non-zero when anything failed.
+# suite in tests/host, tests/outside and tests/rt (or only the suites named
+# in VERNIER_SUITES, as "outside/ardour host/process"). Ends with one line
+# of totals and exits non-zero when anything failed.
 set -u
 BUILD=${BUILD:-build}
 export BUILD
@@ -35,8 +36,15 @@ for t in "$@"; do
   rm -f "$log"
 done
 
-for s in tests/host/*.sh tests/outside/*.sh tests/rt/*.sh; do
-  [ -f "$s" ] || continue
+suites="tests/host/*.sh tests/outside/*.sh tests/rt/*.sh"
+if [ -n "${VERNIER_SUITES:-}" ]; then
+  suites=$(for n in $VERNIER_SUITES; do echo "tests/$n.sh"; done)
+fi
+for s in $suites; do
+  if [ ! -f "$s" ]; then
+    [ -z "${VERNIER_SUITES:-}" ] || echo "fail $s: no such suite" >>"$VERNIER_TEST_RESULTS"
+    continue
+  fi
   echo "== $(basename "$(dirname "$s")"): $(basename "$s" .sh)"
   sh "$s" || echo "fail $s: the suite itself exited non-zero" >>"$VERNIER_TEST_RESULTS"
 done
