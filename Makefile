@@ -189,6 +189,14 @@ check: deps
 check-run: all $(ASAN_BUNDLE) $(BUILD)/asan/vernier $(UNIT_TESTS) $(TEST_BUNDLES)
 	BUILD=$(BUILD) PYTHON=$(PYTHON) sh tests/run.sh $(UNIT_TESTS)
 
+# The headless-Ardour suite alone (tests/outside/ardour.sh; also part of
+# check). It needs Debian's ardour package, which deps does not install:
+# it is large and optional; .ci/run installs it.
+.PHONY: check-daw
+check-daw: deps
+	+$(MAKE) --no-print-directory all
+	BUILD=$(BUILD) PYTHON=$(PYTHON) VERNIER_SUITES=outside/ardour sh tests/run.sh
+
 # ----------------------------------------------------------------- demo ----
 demo: deps
 	+$(MAKE) --no-print-directory demo-run
