@@ -114,11 +114,12 @@ attempt() {
   n=1
   while :; do
     rm -rf "$clean"
-    if timeout "$STEP_SECONDS" "$@" </dev/null >"$log" 2>&1; then
-      return 0
-    fi
+    timeout "$STEP_SECONDS" "$@" </dev/null >"$log" 2>&1
+    rc=$?
+    [ "$rc" -ne 0 ] || return 0
     [ "$n" -lt "$ATTEMPTS" ] || return 1
-    echo "$1 ($(tail -n 1 "$log"))" >>"$T/retries"
+    # 124: timeout's own code; above 128: killed by signal rc - 128.
+    echo "$1 exit $rc: $(tail -n 1 "$log" | cut -c 1-120)" >>"$T/retries"
     n=$((n + 1))
   done
 }
