@@ -30,8 +30,12 @@ LUA="$SRCDIR/tests/tools/ardour_session.lua"
 ARDOUR_LUA=${ARDOUR_LUA:-ardour7-lua}
 ARDOUR_EXPORT=${ARDOUR_EXPORT:-ardour7-export}
 DAW_ONLY=${DAW_ONLY:-*}
-STEP_SECONDS=120
-ATTEMPTS=8
+# A Lua step takes ~2.5 s and an export ~2.2 s here; an export has been
+# seen to hang, so it is cut short sooner.
+STEP_SECONDS=60
+EXPORT_SECONDS=30
+ATTEMPTS=8 # runs of a Lua step (attempt)
+RENDERS=10 # runs of an export, for two that agree (render_agreed)
 # Where the FFT-convolved Hilbert path is in the chain (rotate, and strip
 # when its angle is not 0), the DAW's render differs from ours by float
 # rounding: FFTW keeps what it has planned in a process ("wisdom") and an
@@ -102,12 +106,8 @@ check "the comparison tells equal, shifted and rounded renders apart" $ARDOUR se
 
 # attempt LOG CLEAN CMD...: CMD under timeout with stdin closed, again (up
 # to ATTEMPTS times) while it exits non-zero, removing CLEAN before each
-# try. Ardour 7.3's ardour7-export aborts now and then as it tears down
-# its export channels ("double free or corruption" in ~PortExportChannel;
-# seen in one run in four to one in twenty here, with no plugin of ours in
-# the session too; a run under valgrind showed no error in our plugin), and
-# a crash can leave a partial file, so only a run that exits 0 counts.
-# Retries are counted and printed at the end.
+# try. Ardour 7.3's tools abort now and then (see render_agreed); a retry
+# is counted and printed at the end.
 attempt() {
   log=$1 clean=$2
   shift 2
@@ -122,6 +122,43 @@ attempt() {
     echo "$1 exit $rc: $(tail -n 1 "$log" | cut -c 1-120)" >>"$T/retries"
     n=$((n + 1))
   done
+}
+
+# render_agreed LOG OUT CMD...: runs the export CMD (which writes OUT) until
+# two runs that exit 0 give the same samples, at most RENDERS times, and
+# keeps that render as OUT. Ardour 7.3's ardour7-export is not reliable
+# here, with or without a plugin of ours in the session: it aborts in about
+# one run in five as it tears down its export channels ("double free or
+# corruption" in ~PortExportChannel, seen in a core dump), and now and then
+# the file it leaves, even after exiting 0, has the first sample of every
+# 2048-frame chunk overwritten with garbage (seen in sessions with no
+# plugin; ardour7-export of a rotate session under valgrind: no error in
+# our code). Two runs agreeing bit for bit is the render.
+render_agreed() {
+  log=$1 out=$2
+  shift 2
+  k=1
+  good=
+  while [ "$k" -le "$RENDERS" ]; do
+    this="$out.$k.wav"
+    rm -f "$out" "$this"
+    timeout "$EXPORT_SECONDS" "$@" </dev/null >"$log" 2>&1
+    rc=$?
+    if [ "$rc" -ne 0 ]; then
+      echo "export exit $rc: $(tail -n 1 "$log" | cut -c 1-120)" >>"$T/retries"
+    elif mv "$out" "$this" 2>/dev/null; then
+      for earlier in $good; do
+        if $AUDIO same "$earlier" "$this" >/dev/null 2>&1; then
+          mv "$this" "$out"
+          return 0
+        fi
+      done
+      [ -z "$good" ] || echo "export exit 0: a render unlike the one before" >>"$T/retries"
+      good="$good $this"
+    fi
+    k=$((k + 1))
+  done
+  return 1
 }
 
 ports_of() { # plugin -> $T/ports-PLUGIN.json
@@ -164,9 +201,9 @@ daw_render() {
     fail "DAW render: $name" "adding the region: $(tail -n 3 "$T/region.log" | tr '\n' ' ')"
     return 1
   fi
-  if ! attempt "$T/export-$name.log" "$T/daw-$name.wav" "$ARDOUR_EXPORT" \
+  if ! render_agreed "$T/export-$name.log" "$T/daw-$name.wav" "$ARDOUR_EXPORT" \
     -s "$rate" -b float -o "$T/daw-$name.wav" "$ses" "$name"; then
-    fail "DAW render: $name" "$ARDOUR_EXPORT: $(tail -n 3 "$T/export-$name.log" | tr '\n' ' ')"
+    fail "DAW render: $name" "no two of $RENDERS runs of $ARDOUR_EXPORT agreed: $(tail -n 3 "$T/export-$name.log" | tr '\n' ' ')"
     return 1
   fi
 }
@@ -345,5 +382,5 @@ fi
 
 echo "-- figures (max_diff: largest |DAW - ours|; lag: DAW's lag behind ours, frames)"
 cat "$T/figures" 2>/dev/null
-echo "  Ardour runs retried after an abort: $(wc -l <"$T/retries")"
+echo "  Ardour runs retried (an abort, or a render unlike another): $(wc -l <"$T/retries")"
 sed 's/^/    /' "$T/retries"
