@@ -241,9 +241,27 @@ latency_check() {
   fi
 }
 
-# figures NAME WHAT: the comparison's line, kept for the summary.
-figures() {
-  printf '  %-24s %-8s %s\n' "$1" "$2" "$(cat "$T/cmp.log")" >>"$T/figures"
+# compare_check CHECK ROW WHAT DAW.wav OURS.wav [compare options]: passes
+# CHECK when `ardour.py compare` does, and keeps its line (in $T/cmp.log,
+# and under ROW and WHAT for the figures printed at the end).
+compare_check() {
+  check_name=$1 row=$2 kind=$3
+  shift 3
+  if $ARDOUR compare "$@" >"$T/cmp.log" 2>&1; then
+    pass "$check_name"
+  else
+    fail "$check_name" "$(cat "$T/cmp.log")"
+  fi
+  printf '  %-24s %-8s %s\n' "$row" "$kind" "$(cat "$T/cmp.log")" >>"$T/figures"
+}
+
+# tolerance PLUGIN: sets within (compare's options) and what (its label):
+# bit-identical, or FFT_WITHIN for the plugins with the FFT path.
+tolerance() {
+  case "$1" in
+  rotate-* | strip-*) within="--within $FFT_WITHIN" what="<=$FFT_WITHIN" ;;
+  *) within='' what=same ;;
+  esac
 }
 
 # Test files, float32 (what the DAW renders): 0.5 s of white noise; the
@@ -260,37 +278,24 @@ echo "$CASES" | while IFS='|' read -r name plugin file rate settings; do
   in="$T/in/$file.wav"
   daw_render "$name" "$plugin" "$in" "$rate" - "$settings" || continue
   [ "$settings" = - ] && settings=
-  within=
-  what=same
   case "$name" in
   no-plugin-*)
     # Region, fades, panner and bus: the file itself, bit for bit.
-    if $ARDOUR compare "$T/daw-$name.wav" "$in" >"$T/cmp.log" 2>&1; then
-      pass "DAW render without a plugin is the file: $name"
-    else
-      fail "DAW render without a plugin is the file: $name" "$(cat "$T/cmp.log")"
-    fi
-    figures "$name" "$what"
+    compare_check "DAW render without a plugin is the file: $name" "$name" same \
+      "$T/daw-$name.wav" "$in"
     continue
     ;;
   neutral-*)
     # A neutral setting passes the input through late by exactly the
     # latency the plugin reports, so a render identical to the input shows
     # that the latency we report is the latency we have.
-    if $ARDOUR compare "$T/daw-$name.wav" "$in" >"$T/cmp.log" 2>&1; then
-      pass "DAW render at a neutral setting is the file, bit for bit: $name"
-    else
-      fail "DAW render at a neutral setting is the file, bit for bit: $name" "$(cat "$T/cmp.log")"
-    fi
-    figures "$name" "$what"
+    compare_check "DAW render at a neutral setting is the file, bit for bit: $name" \
+      "$name" same "$T/daw-$name.wav" "$in"
     latency_check "$name" "$plugin" "$rate"
     continue
     ;;
-  rotate-* | strip-*)
-    within="--within $FFT_WITHIN"
-    what="<=$FFT_WITHIN"
-    ;;
   esac
+  tolerance "$plugin"
   # shellcheck disable=SC2086
   if ! "$VERNIER_PLAIN" process -q "$in" "$T/ours-$name.wav" "urn:vernier:$plugin" $settings \
     >"$T/ours.log" 2>&1; then
@@ -298,13 +303,8 @@ echo "$CASES" | while IFS='|' read -r name plugin file rate settings; do
     continue
   fi
   # shellcheck disable=SC2086
-  if $ARDOUR compare "$T/daw-$name.wav" "$T/ours-$name.wav" $within \
-    --input "$in" >"$T/cmp.log" 2>&1; then
-    pass "DAW render matches vernier process ($what): $name"
-  else
-    fail "DAW render matches vernier process ($what): $name" "$(cat "$T/cmp.log")"
-  fi
-  figures "$name" "$what"
+  compare_check "DAW render matches vernier process ($what): $name" "$name" "$what" \
+    "$T/daw-$name.wav" "$T/ours-$name.wav" $within --input "$in"
   # 5 ms early at 48 kHz is 240 frames early, 2.5 ms late 120 frames late:
   # the input moved by whole frames, as the control says.
   case "$name" in
@@ -346,38 +346,24 @@ echo "$PRESETS" | while IFS='|' read -r name plugin file preset; do
   case "$name" in $DAW_ONLY) ;; *) continue ;; esac
   in="$T/in/$file.wav"
   daw_render "$name" "$plugin" "$in" 48000 "$preset" - || continue
-  within=
-  what=same
-  case "$plugin" in
-  strip-*)
-    within="--within $FFT_WITHIN"
-    what="<=$FFT_WITHIN"
-    ;;
-  esac
+  tolerance "$plugin"
   if ! "$VERNIER_PLAIN" process -q "$in" "$T/ours-$name.wav" "urn:vernier:$plugin" \
     "@${preset#label:}" >"$T/ours.log" 2>&1; then
     fail "DAW preset renders as vernier process's: $name" "vernier: $(head -n 3 "$T/ours.log" | tr '\n' ' ')"
     continue
   fi
   # shellcheck disable=SC2086
-  if $ARDOUR compare "$T/daw-$name.wav" "$T/ours-$name.wav" $within \
-    >"$T/cmp.log" 2>&1; then
-    pass "DAW preset renders as vernier process's ($what): $name"
-  else
-    fail "DAW preset renders as vernier process's ($what): $name" "$(cat "$T/cmp.log")"
-  fi
-  figures "$name" "$what"
+  compare_check "DAW preset renders as vernier process's ($what): $name" "$name" "$what" \
+    "$T/daw-$name.wav" "$T/ours-$name.wav" $within
   state_check "$name" "$plugin"
 done
 # The corrected file measure wrote is the preset's render too.
 if [ -f "$T/daw-measured-strip-mono.wav" ]; then
-  if $ARDOUR compare "$T/daw-measured-strip-mono.wav" "$T/written/tgt-aligned.wav" \
-    --within "$FFT_WITHIN" >"$T/cmp.log" 2>&1; then
-    pass "DAW render of the measured preset matches measure's corrected file"
-  else
-    fail "DAW render of the measured preset matches measure's corrected file" "$(cat "$T/cmp.log")"
-  fi
-  figures "measured vs written" "<=$FFT_WITHIN"
+  tolerance strip-mono
+  # shellcheck disable=SC2086
+  compare_check "DAW render of the measured preset matches measure's corrected file" \
+    "measured vs written" "$what" "$T/daw-measured-strip-mono.wav" \
+    "$T/written/tgt-aligned.wav" $within
 fi
 
 echo "-- figures (max_diff: largest |DAW - ours|; lag: DAW's lag behind ours, frames)"

@@ -34,7 +34,7 @@ import sys
 
 import numpy as np
 
-from wavtools import read
+from wavtools import arg, read
 
 SOURCE_ID, REGION_ID, PLAYLIST_REGION_ID, RANGE_ID = 90001, 90101, 90102, 90201
 
@@ -164,14 +164,14 @@ def compare(daw_path, ours_path):
     daw, ours = two_channels(daw, daw_path), two_channels(ours, ours_path)
     diff, lag = difference(daw, ours, rd)
     line = "max_diff=%.3g lag=%d" % (diff, lag)
-    if "--input" in sys.argv:
-        ri, x = read(sys.argv[sys.argv.index("--input") + 1])
+    input_path = arg("--input", None, str)
+    if input_path:
+        ri, x = read(input_path)
         line += " lag_vs_input=%d" % difference(daw, two_channels(x, "input"), ri)[1]
     if len(daw) != len(ours):
         line += " frames=%d/%d" % (len(daw), len(ours))
     print(line)
-    within = float(sys.argv[sys.argv.index("--within") + 1]) \
-        if "--within" in sys.argv else None
+    within = arg("--within", None)
     sys.exit(0 if verdict(daw, ours, diff, lag, within) else 1)
 
 
